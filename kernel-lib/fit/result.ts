@@ -1,0 +1,79 @@
+/** What a fit returns. Problems are reported in flags and warnings, never by throwing. */
+
+export interface FixedEffectRow {
+  term: string;
+  estimate: number;
+  se: number;
+  /** Degrees of freedom of the interval (Infinity for Wald/normal). */
+  df: number;
+  lower: number;
+  upper: number;
+  /** Interval method used for this row. */
+  method: string;
+  /** True when the column is a linear combination of earlier columns: estimate/se are NaN. */
+  aliased: boolean;
+}
+
+export interface VarianceComponentRow {
+  /** Grouping factor, or "residual". */
+  factor: string;
+  /** "intercept", a slope column name, or "" for the residual. */
+  term: string;
+  sd: number;
+  variance: number;
+}
+
+export interface CorrelationRow {
+  factor: string;
+  terms: [string, string];
+  value: number;
+}
+
+export interface ConditionalModeRow {
+  factor: string;
+  level: string;
+  term: string;
+  /** Conditional mode (BLUP) of the random effect. */
+  mode: number;
+  /** Conditional SD given the estimated parameters. */
+  sd: number;
+}
+
+export interface FitResult {
+  estimation: 'REML' | 'ML' | 'OLS';
+  observations: number;
+  droppedRows: number;
+  levels: Record<string, number>;
+  fixed: FixedEffectRow[];
+  /** Covariance of the estimable fixed effects, p × p row-major (NaN rows/cols for aliased terms). */
+  fixedCov: Float64Array;
+  random: VarianceComponentRow[];
+  correlations: CorrelationRow[];
+  residualSd: number;
+  /**
+   * Log-likelihood including all constants: for ML the full Gaussian log density of y;
+   * for REML the restricted log-likelihood of Harville (1974) in the profiled form of
+   * Bates and DebRoy (2004), i.e. -0.5 * REML deviance.
+   */
+  logLik: number;
+  aic: number;
+  bic: number;
+  /** Number of parameters counted in AIC/BIC: estimable fixed effects + covariance parameters + residual variance. */
+  parameters: number;
+  /** Relative covariance parameters θ at the optimum (engine scale). */
+  theta: number[];
+  /** Criterion minimised: REML or ML deviance (or -2 logLik for OLS). */
+  deviance: number;
+  converged: boolean;
+  singular: boolean;
+  /** Names of aliased fixed-effect columns. */
+  aliased: string[];
+  warnings: string[];
+  /** Number of deviance evaluations used by the optimiser. */
+  evaluations: number;
+  modes: ConditionalModeRow[];
+  fitted: Float64Array;
+  residuals: Float64Array;
+  /** Input row number of each observation used. */
+  rowIds: Int32Array;
+}

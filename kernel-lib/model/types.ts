@@ -1,0 +1,74 @@
+/**
+ * The one model description that travels through Quadrat: fitted to a real survey,
+ * to every simulated data set, and used as an analysis variant in a study.
+ * The same shape is accepted as JSON (see parseModel in ./parse).
+ */
+
+/** How a grouping factor enters the model. */
+export type GroupRole = 'random' | 'fixed';
+
+export type Estimation = 'REML' | 'ML';
+
+/** What to do with rows that have a missing value in a column the model uses. */
+export type MissingPolicy = 'drop' | 'reject';
+
+export interface GroupSpec {
+  /** Column holding the grouping factor (levels are compared as strings). */
+  factor: string;
+  /** `random`: variance component(s); `fixed`: dummy-coded (treatment coding) into the fixed part. */
+  as: GroupRole;
+  /**
+   * Name of the factor this one is nested in. The level identity becomes the pair
+   * (outer level, own level), so plot "1" of site A differs from plot "1" of site B.
+   */
+  within?: string;
+  /** Numeric fixed-part columns whose slopes vary by this factor. Default: none. */
+  slopes?: string[];
+  /** With slopes: whether intercept and slopes are correlated. Default: true. */
+  correlated?: boolean;
+  /** Reference level when `as: "fixed"`. Default: first level in sorted order. */
+  reference?: string;
+}
+
+/** A categorical column with a chosen reference level. */
+export interface CategoricalTerm {
+  column: string;
+  /** Default: the first level in sorted order. */
+  reference?: string;
+}
+
+/**
+ * A fixed term: a column name (numeric columns enter as is, text columns are treated
+ * as categorical), `a:b` for a two-way interaction, or an object to set a reference level.
+ */
+export type FixedTerm = string | CategoricalTerm;
+
+export interface ModelSpec {
+  response: string;
+  /** Fixed terms; an intercept is always included. Default: []. */
+  fixed?: FixedTerm[];
+  /** Grouping factors. Default: [] (ordinary least squares). */
+  groups?: GroupSpec[];
+  /** Default: 'REML'. */
+  estimation?: Estimation;
+  /** Columns to treat as categorical even when their values look numeric. Default: []. */
+  categorical?: string[];
+  /** Default: 'drop' (dropped rows are counted in the result). */
+  missing?: MissingPolicy;
+  /** Interval method for fixed effects. Default: 'wald'. */
+  interval?: string;
+  /** Interval level. Default: 0.95. */
+  level?: number;
+}
+
+/** A model description with every default filled in. */
+export interface ResolvedModel {
+  response: string;
+  fixed: FixedTerm[];
+  groups: GroupSpec[];
+  estimation: Estimation;
+  categorical: string[];
+  missing: MissingPolicy;
+  interval: string;
+  level: number;
+}

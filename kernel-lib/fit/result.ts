@@ -66,6 +66,8 @@ export interface FitResult {
   deviance: number;
   converged: boolean;
   singular: boolean;
+  /** Why no estimates could be produced ('' when the fit produced estimates). */
+  failure: string;
   /** Names of aliased fixed-effect columns. */
   aliased: string[];
   warnings: string[];

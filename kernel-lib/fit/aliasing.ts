@@ -1,0 +1,74 @@
+import type { DesignMatrices } from './design';
+
+/** Which fixed-effect columns can be estimated and which are linear combinations of earlier ones. */
+export interface AliasReport {
+  /** Indices (into the design's columns) of estimable columns, in order. */
+  estimable: number[];
+  /** Indices of aliased columns. */
+  aliased: number[];
+}
+
+/** Relative pivot below which a column counts as a combination of the earlier ones. */
+export const ALIAS_TOLERANCE = 1e-9;
+
+/**
+ * Detect aliased columns of X by a sequential Cholesky factorisation of the scaled cross-product
+ * matrix, skipping a column whose remaining pivot falls below ALIAS_TOLERANCE of its own norm
+ * (Golub and Van Loan, Matrix Computations, 4th ed. 2013, §5.4.1 on rank-revealing factorisations).
+ * Columns are visited in `priority` order and earlier ones win. The caller puts the intercept and
+ * the dummies of fixed grouping factors first, so that with site fixed a site-level covariate is
+ * the coefficient marked not estimable (the site dummies absorb it), as an analyst expects.
+ */
+export function detectAliasing(design: DesignMatrices, priority?: number[]): AliasReport {
+  const { n, p, X } = design;
+  const xtx = new Float64Array(p * p);
+  for (let i = 0; i < n; i++) {
+    const r = i * p;
+    for (let a = 0; a < p; a++) {
+      const xa = X[r + a];
+      if (xa === 0) continue;
+      for (let b = 0; b <= a; b++) xtx[a * p + b] += xa * X[r + b];
+    }
+  }
+  for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) xtx[a * p + b] = xtx[b * p + a];
+  const scale = new Float64Array(p);
+  for (let a = 0; a < p; a++) scale[a] = xtx[a * p + a] > 0 ? 1 / Math.sqrt(xtx[a * p + a]) : 0;
+  const l = new Float64Array(p * p);
+  const estimable: number[] = [];
+  const aliased: number[] = [];
+  const visit = priority ?? Array.from({ length: p }, (_, j) => j);
+  for (const j of visit) {
+    if (scale[j] === 0) { aliased.push(j); continue; }
+    // row j of the factor against the estimable columns found so far
+    const row = new Float64Array(estimable.length);
+    let d = 1;
+    for (let e = 0; e < estimable.length; e++) {
+      const c = estimable[e];
+      let s = xtx[j * p + c] * scale[j] * scale[c];
+      for (let k = 0; k < e; k++) s -= row[k] * l[e * p + k];
+      row[e] = s / l[e * p + e];
+      d -= row[e] * row[e];
+    }
+    if (d > ALIAS_TOLERANCE) {
+      const e = estimable.length;
+      for (let k = 0; k < e; k++) l[e * p + k] = row[k];
+      l[e * p + e] = Math.sqrt(d);
+      estimable.push(j);
+    } else {
+      aliased.push(j);
+    }
+  }
+  estimable.sort((a, b) => a - b);
+  aliased.sort((a, b) => a - b);
+  return { estimable, aliased };
+}
+
+/** A copy of the design keeping only the given fixed-effect columns. */
+export function restrictColumns(design: DesignMatrices, keep: number[]): DesignMatrices {
+  if (keep.length === design.p) return design;
+  const { n, p, X } = design;
+  const q = keep.length;
+  const out = new Float64Array(n * q);
+  for (let i = 0; i < n; i++) for (let j = 0; j < q; j++) out[i * q + j] = X[i * p + keep[j]];
+  return { ...design, p: q, X: out, fixedNames: keep.map((j) => design.fixedNames[j]) };
+}

@@ -1,0 +1,564 @@
+import type { DesignMatrices, RandomTerm } from './design';
+import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace } from '../numeric/dense';
+
+/**
+ * Profiled REML/ML deviance of a linear mixed model through penalised least squares
+ * (Bates and DebRoy 2004, J. Multivariate Analysis 91:1-17; Bates et al. 2015, J. Stat. Softw.
+ * 67(1), §3). Random effects b = Λ(θ) u with u ~ N(0, σ²I); Λ is block diagonal, one k×k lower
+ * triangular template T per term repeated over its levels.
+ *
+ * Structure exploited: the term with most random effects comes first; its block of
+ * ΛᵀZᵀZΛ + I is block diagonal (one k×k block per level), so its Cholesky factor is too.
+ * The remaining terms form one dense block. Everything is computed from cross-products
+ * (ZᵀZ, Zᵀ[X y], [X y]ᵀ[X y]) built once, so an evaluation costs the same whatever n,
+ * and a new response only refreshes the y column of the cross-products.
+ */
+
+/** Where each covariance parameter sits in a term's template T. */
+export interface TermLayout {
+  term: RandomTerm;
+  k: number;
+  m: number;
+  /** First row of this term in u. */
+  start: number;
+  /** First θ index of this term. */
+  thetaStart: number;
+  /** Number of θ entries: k(k+1)/2 when correlated, else k. */
+  thetaCount: number;
+}
+
+export class ProfiledDeviance {
+  readonly n: number;
+  readonly p: number;
+  /** Width of the augmented [X y] block. */
+  readonly w: number;
+  readonly terms: TermLayout[];
+  readonly q: number;
+  readonly q1: number;
+  readonly q2: number;
+  readonly k1: number;
+  readonly m1: number;
+  readonly thetaLength: number;
+  readonly lowerBounds: Float64Array;
+  readonly reml: boolean;
+
+  // cross-products that depend on the design only
+  private readonly g1: Float64Array; // m1 blocks of k1×k1: Z1ᵀZ1 per level
+  private readonly z2z1: Float64Array; // q2 × q1
+  private readonly z2z2: Float64Array; // q2 × q2
+  // cross-products that involve the response
+  private readonly zxy: Float64Array; // q × w
+  private readonly xyxy: Float64Array; // w × w
+  // workspaces, reused across evaluations
+  readonly templates: Float64Array[]; // per term k×k lower triangular T
+  readonly l11: Float64Array;
+  readonly l21: Float64Array;
+  readonly l22: Float64Array;
+  readonly r: Float64Array; // q × w
+  readonly m: Float64Array; // w × w
+  private readonly block: Float64Array;
+  private readonly tmpRow: Float64Array;
+  private design: DesignMatrices;
+  /** The last evaluation failed a factorisation (reported, not thrown). */
+  lastFailure = '';
+
+  constructor(design: DesignMatrices, reml: boolean) {
+    this.design = design;
+    this.reml = reml;
+    this.n = design.n;
+    this.p = design.p;
+    this.w = design.p + 1;
+    const ordered = design.random
+      .map((term, i) => ({ term, i, size: term.levels.length * term.terms.length }))
+      .sort((a, b) => b.size - a.size || a.i - b.i);
+    let start = 0;
+    let thetaStart = 0;
+    this.terms = ordered.map(({ term }) => {
+      const k = term.terms.length;
+      const thetaCount = term.correlated ? (k * (k + 1)) / 2 : k;
+      const layout: TermLayout = { term, k, m: term.levels.length, start, thetaStart, thetaCount };
+      start += k * term.levels.length;
+      thetaStart += thetaCount;
+      return layout;
+    });
+    this.q = start;
+    this.thetaLength = thetaStart;
+    this.k1 = this.terms.length ? this.terms[0].k : 0;
+    this.m1 = this.terms.length ? this.terms[0].m : 0;
+    this.q1 = this.k1 * this.m1;
+    this.q2 = this.q - this.q1;
+    this.lowerBounds = new Float64Array(this.thetaLength);
+    for (const t of this.terms) {
+      let idx = t.thetaStart;
+      if (t.term.correlated) {
+        for (let j = 0; j < t.k; j++) for (let i = j; i < t.k; i++) this.lowerBounds[idx++] = i === j ? 0 : -Infinity;
+      } else {
+        for (let j = 0; j < t.k; j++) this.lowerBounds[idx++] = 0;
+      }
+    }
+    const { q1, q2, k1, m1, q, w } = this;
+    this.g1 = new Float64Array(m1 * k1 * k1);
+    this.z2z1 = new Float64Array(q2 * q1);
+    this.z2z2 = new Float64Array(q2 * q2);
+    this.zxy = new Float64Array(q * w);
+    this.xyxy = new Float64Array(w * w);
+    this.templates = this.terms.map((t) => new Float64Array(t.k * t.k));
+    this.l11 = new Float64Array(m1 * k1 * k1);
+    this.l21 = new Float64Array(q2 * q1);
+    this.l22 = new Float64Array(q2 * q2);
+    this.r = new Float64Array(q * w);
+    this.m = new Float64Array(w * w);
+    this.block = new Float64Array(Math.max(1, k1 * k1));
+    this.tmpRow = new Float64Array(Math.max(1, q1));
+    this.buildDesignProducts();
+    this.buildResponseProducts();
+  }
+
+  /** Replace the response (same design): refresh only the cross-products that involve y. */
+  setResponse(y: Float64Array): void {
+    this.design = { ...this.design, y };
+    this.buildResponseProducts();
+  }
+
+  /** Starting θ: identity templates (random-effect SD equal to the residual SD). */
+  initialTheta(): Float64Array {
+    const theta = new Float64Array(this.thetaLength);
+    for (const t of this.terms) {
+      let idx = t.thetaStart;
+      if (t.term.correlated) {
+        for (let j = 0; j < t.k; j++) for (let i = j; i < t.k; i++) theta[idx++] = i === j ? 1 : 0;
+      } else {
+        for (let j = 0; j < t.k; j++) theta[idx++] = 1;
+      }
+    }
+    return theta;
+  }
+
+  private columnIndexOfLevelRow(t: TermLayout, level: number, j: number): number {
+    return t.start + level * t.k + j;
+  }
+
+  private buildDesignProducts(): void {
+    const { n, terms, q1, q2, k1 } = this;
+    this.g1.fill(0);
+    this.z2z1.fill(0);
+    this.z2z2.fill(0);
+    if (!terms.length) return;
+    const t1 = terms[0];
+    for (let i = 0; i < n; i++) {
+      const l1 = t1.term.index[i];
+      const v1 = t1.term.values;
+      const g = l1 * k1 * k1;
+      for (let a = 0; a < k1; a++) {
+        const za = v1[i * k1 + a];
+        for (let b = 0; b <= a; b++) this.g1[g + a * k1 + b] += za * v1[i * k1 + b];
+      }
+      for (let s = 1; s < terms.length; s++) {
+        const ts = terms[s];
+        const ls = ts.term.index[i];
+        for (let a = 0; a < ts.k; a++) {
+          const za = ts.term.values[i * ts.k + a];
+          if (za === 0) continue;
+          const row = this.columnIndexOfLevelRow(ts, ls, a) - q1;
+          for (let b = 0; b < k1; b++) this.z2z1[row * q1 + l1 * k1 + b] += za * v1[i * k1 + b];
+          for (let s2 = 1; s2 <= s; s2++) {
+            const tt = terms[s2];
+            const lt = tt.term.index[i];
+            for (let b = 0; b < tt.k; b++) {
+              const col = this.columnIndexOfLevelRow(tt, lt, b) - q1;
+              if (col > row) continue;
+              this.z2z2[row * q2 + col] += za * tt.term.values[i * tt.k + b];
+            }
+          }
+        }
+      }
+    }
+    // symmetrise the blocks we filled in the lower triangle
+    for (let l = 0; l < this.m1; l++) {
+      const g = l * k1 * k1;
+      for (let a = 0; a < k1; a++) for (let b = a + 1; b < k1; b++) this.g1[g + a * k1 + b] = this.g1[g + b * k1 + a];
+    }
+    for (let a = 0; a < q2; a++) for (let b = a + 1; b < q2; b++) this.z2z2[a * q2 + b] = this.z2z2[b * q2 + a];
+  }
+
+  private buildResponseProducts(): void {
+    const { n, p, w, terms } = this;
+    const { X, y } = this.design;
+    this.zxy.fill(0);
+    this.xyxy.fill(0);
+    const xy = this.xyxy;
+    // [X y]ᵀ[X y], lower triangle, then mirrored
+    for (let i = 0; i < n; i++) {
+      const r = i * p;
+      const yi = y[i];
+      for (let a = 0; a < p; a++) {
+        const xa = X[r + a];
+        if (xa === 0) continue;
+        const row = a * w;
+        for (let b = 0; b <= a; b++) xy[row + b] += xa * X[r + b];
+      }
+      const rowY = p * w;
+      for (let b = 0; b < p; b++) xy[rowY + b] += yi * X[r + b];
+      xy[rowY + p] += yi * yi;
+    }
+    for (let a = 0; a < w; a++) for (let b = a + 1; b < w; b++) xy[a * w + b] = xy[b * w + a];
+    for (const t of terms) {
+      const { index, values } = t.term;
+      const k = t.k;
+      for (let i = 0; i < n; i++) {
+        const base = (t.start + index[i] * k) * w;
+        const r = i * p;
+        const yi = y[i];
+        for (let j = 0; j < k; j++) {
+          const z = values[i * k + j];
+          if (z === 0) continue;
+          const row = base + j * w;
+          for (let b = 0; b < p; b++) this.zxy[row + b] += z * X[r + b];
+          this.zxy[row + p] += z * yi;
+        }
+      }
+    }
+  }
+
+  /** Fill the per-term templates T from θ. */
+  setTheta(theta: ArrayLike<number>): void {
+    for (let s = 0; s < this.terms.length; s++) {
+      const t = this.terms[s];
+      const T = this.templates[s];
+      T.fill(0);
+      let idx = t.thetaStart;
+      if (t.term.correlated) {
+        for (let j = 0; j < t.k; j++) for (let i = j; i < t.k; i++) T[i * t.k + j] = theta[idx++];
+      } else {
+        for (let j = 0; j < t.k; j++) T[j * t.k + j] = theta[idx++];
+      }
+    }
+  }
+
+  /**
+   * Overwrite rows [rowStart, rowStart + rows) of a row-major matrix (row stride `stride`, `cols` columns)
+   * by Λᵀ times those rows, term by term. In place: row j of a block uses rows j..k-1, so ascending j is safe.
+   */
+  private applyLambdaTransposeLeft(a: Float64Array, stride: number, cols: number, firstTerm: number, rowOffset: number): void {
+    for (let s = firstTerm; s < this.terms.length; s++) {
+      const t = this.terms[s];
+      const T = this.templates[s];
+      const k = t.k;
+      for (let l = 0; l < t.m; l++) {
+        const base = t.start + l * k - rowOffset;
+        for (let j = 0; j < k; j++) {
+          const rj = (base + j) * stride;
+          const tjj = T[j * k + j];
+          for (let c = 0; c < cols; c++) {
+            let sum = tjj * a[rj + c];
+            for (let jp = j + 1; jp < k; jp++) sum += T[jp * k + j] * a[(base + jp) * stride + c];
+            a[rj + c] = sum;
+          }
+        }
+      }
+    }
+  }
+
+  /** Overwrite columns by (matrix)·Λ for the terms from firstTerm on; columns shifted by colOffset. */
+  private applyLambdaRight(a: Float64Array, stride: number, rows: number, firstTerm: number, lastTerm: number, colOffset: number): void {
+    for (let s = firstTerm; s <= lastTerm; s++) {
+      const t = this.terms[s];
+      const T = this.templates[s];
+      const k = t.k;
+      for (let l = 0; l < t.m; l++) {
+        const base = t.start + l * k - colOffset;
+        for (let j = 0; j < k; j++) {
+          const tjj = T[j * k + j];
+          for (let r = 0; r < rows; r++) {
+            const rr = r * stride;
+            let sum = tjj * a[rr + base + j];
+            for (let jp = j + 1; jp < k; jp++) sum += a[rr + base + jp] * T[jp * k + j];
+            a[rr + base + j] = sum;
+          }
+        }
+      }
+    }
+  }
+
+  /**
+   * Factor the penalised system at θ. Returns false (with lastFailure set) when a factorisation
+   * fails, which for a valid θ only happens when [X y] is numerically degenerate.
+   */
+  factor(theta: ArrayLike<number>): boolean {
+    this.setTheta(theta);
+    const { q1, q2, k1, m1, w, terms } = this;
+    const nTerms = terms.length;
+    if (nTerms) {
+      // L11: per level, T1ᵀ G T1 + I
+      const T1 = this.templates[0];
+      const blk = this.block;
+      for (let l = 0; l < m1; l++) {
+        const g = l * k1 * k1;
+        // blk = G T1
+        for (let a = 0; a < k1; a++) {
+          for (let b = 0; b < k1; b++) {
+            let s = 0;
+            for (let c = b; c < k1; c++) s += this.g1[g + a * k1 + c] * T1[c * k1 + b];
+            blk[a * k1 + b] = s;
+          }
+        }
+        // L11 block = T1ᵀ (G T1) + I
+        for (let a = 0; a < k1; a++) {
+          for (let b = 0; b <= a; b++) {
+            let s = a === b ? 1 : 0;
+            for (let c = a; c < k1; c++) s += T1[c * k1 + a] * blk[c * k1 + b];
+            this.l11[g + a * k1 + b] = s;
+          }
+        }
+        if (choleskyInPlace(this.l11, k1, k1, g) >= 0) { this.lastFailure = 'random-effects block not positive definite'; return false; }
+      }
+      if (q2 > 0) {
+        // L21 = Λ2ᵀ Z2ᵀZ1 Λ1 L11⁻ᵀ
+        this.l21.set(this.z2z1);
+        this.applyLambdaTransposeLeft(this.l21, q1, q1, 1, q1);
+        this.applyLambdaRight(this.l21, q1, q2, 0, 0, 0);
+        for (let r = 0; r < q2; r++) {
+          for (let l = 0; l < m1; l++) forwardSolveInPlace(this.l11, k1, this.l21, k1, l * k1 * k1, r * q1 + l * k1);
+        }
+        // L22 = chol(Λ2ᵀ Z2ᵀZ2 Λ2 + I − L21 L21ᵀ)
+        this.l22.set(this.z2z2);
+        this.applyLambdaTransposeLeft(this.l22, q2, q2, 1, q1);
+        this.applyLambdaRight(this.l22, q2, q2, 1, nTerms - 1, q1);
+        for (let a = 0; a < q2; a++) {
+          const ra = a * q1;
+          for (let b = 0; b <= a; b++) {
+            const rb = b * q1;
+            let s = this.l22[a * q2 + b];
+            for (let c = 0; c < q1; c++) s -= this.l21[ra + c] * this.l21[rb + c];
+            this.l22[a * q2 + b] = a === b ? s + 1 : s;
+          }
+        }
+        if (choleskyInPlace(this.l22, q2) >= 0) { this.lastFailure = 'random-effects block not positive definite'; return false; }
+      }
+      // R = L⁻¹ Λᵀ Zᵀ[X y]
+      this.r.set(this.zxy);
+      this.applyLambdaTransposeLeft(this.r, w, w, 0, 0);
+      for (let l = 0; l < m1; l++) {
+        for (let c = 0; c < w; c++) {
+          // forward solve on a strided column: small k1, do it inline
+          for (let a = 0; a < k1; a++) {
+            const la = l * k1 * k1 + a * k1;
+            let s = this.r[(l * k1 + a) * w + c];
+            for (let b = 0; b < a; b++) s -= this.l11[la + b] * this.r[(l * k1 + b) * w + c];
+            this.r[(l * k1 + a) * w + c] = s / this.l11[la + a];
+          }
+        }
+      }
+      if (q2 > 0) {
+        for (let a = 0; a < q2; a++) {
+          const ra = a * q1;
+          for (let c = 0; c < w; c++) {
+            let s = this.r[(q1 + a) * w + c];
+            for (let b = 0; b < q1; b++) s -= this.l21[ra + b] * this.r[b * w + c];
+            this.r[(q1 + a) * w + c] = s;
+          }
+        }
+        for (let c = 0; c < w; c++) {
+          for (let a = 0; a < q2; a++) {
+            let s = this.r[(q1 + a) * w + c];
+            for (let b = 0; b < a; b++) s -= this.l22[a * q2 + b] * this.r[(q1 + b) * w + c];
+            this.r[(q1 + a) * w + c] = s / this.l22[a * q2 + a];
+          }
+        }
+      }
+    }
+    // M = [X y]ᵀ[X y] − RᵀR, then its Cholesky factor holds RX, cβ and the penalised residual r
+    const M = this.m;
+    const q = this.q;
+    for (let a = 0; a < w; a++) {
+      for (let b = 0; b <= a; b++) {
+        let s = this.xyxy[a * w + b];
+        for (let c = 0; c < q; c++) s -= this.r[c * w + a] * this.r[c * w + b];
+        M[a * w + b] = s;
+      }
+    }
+    const bad = choleskyInPlace(M, w);
+    if (bad >= 0) {
+      // a zero last pivot means a perfect fit (residual sum of squares 0)
+      this.lastFailure = bad === w - 1 ? 'the model fits the response exactly (zero residual variance)' : 'fixed-effect block not positive definite';
+      return false;
+    }
+    this.lastFailure = '';
+    return true;
+  }
+
+  /** log|L|² (twice the sum of log diagonal of the random-effects factor). */
+  logDetL(): number {
+    let s = 0;
+    const { k1, m1, q2 } = this;
+    for (let l = 0; l < m1; l++) for (let a = 0; a < k1; a++) s += Math.log(this.l11[l * k1 * k1 + a * k1 + a]);
+    for (let a = 0; a < q2; a++) s += Math.log(this.l22[a * q2 + a]);
+    return 2 * s;
+  }
+
+  /** log|RX|² from the last factorisation. */
+  logDetRX(): number {
+    let s = 0;
+    for (let a = 0; a < this.p; a++) s += Math.log(this.m[a * this.w + a]);
+    return 2 * s;
+  }
+
+  /** Penalised residual sum of squares r² from the last factorisation. */
+  penalisedRss(): number {
+    const r = this.m[this.p * this.w + this.p];
+    return r * r;
+  }
+
+  /** Profiled deviance at θ: REML criterion or −2 log-likelihood (Bates et al. 2015, §3.4). */
+  evaluate(theta: ArrayLike<number>): number {
+    if (!this.factor(theta)) return Infinity;
+    const { n, p } = this;
+    const r2 = this.penalisedRss();
+    if (this.reml) {
+      const dof = n - p;
+      return this.logDetL() + this.logDetRX() + dof * (1 + Math.log((2 * Math.PI * r2) / dof));
+    }
+    return this.logDetL() + n * (1 + Math.log((2 * Math.PI * r2) / n));
+  }
+
+  /** Residual variance estimate at the last factorisation. */
+  sigma2(): number {
+    return this.penalisedRss() / (this.reml ? this.n - this.p : this.n);
+  }
+
+  /** Fixed effects β = RX⁻¹ cβ from the last factorisation. */
+  beta(out: Float64Array = new Float64Array(this.p)): Float64Array {
+    const { p, w } = this;
+    for (let a = 0; a < p; a++) out[a] = this.m[p * w + a];
+    backSolveTransposeInPlace(this.m, p, out, w);
+    return out;
+  }
+
+  /** (RXᵀRX)⁻¹ (p×p), to be scaled by σ² for the fixed-effect covariance. */
+  unscaledFixedCovariance(): Float64Array {
+    const { p, w } = this;
+    const out = new Float64Array(p * p);
+    const col = new Float64Array(p);
+    for (let j = 0; j < p; j++) {
+      col.fill(0);
+      col[j] = 1;
+      forwardSolveInPlace(this.m, p, col, w);
+      backSolveTransposeInPlace(this.m, p, col, w);
+      for (let i = 0; i < p; i++) out[i * p + j] = col[i];
+    }
+    return out;
+  }
+
+  /** Spherical random effects u = L⁻ᵀ(cu − RZX β) and b = Λu, in the engine's term order. */
+  randomEffects(beta: Float64Array): { u: Float64Array; b: Float64Array } {
+    const { q, q1, q2, k1, m1, w, p } = this;
+    const u = new Float64Array(q);
+    for (let c = 0; c < q; c++) {
+      let s = this.r[c * w + p];
+      for (let a = 0; a < p; a++) s -= this.r[c * w + a] * beta[a];
+      u[c] = s;
+    }
+    if (q2 > 0) {
+      backSolveTransposeInPlace(this.l22, q2, u, q2, 0, q1);
+      for (let c = 0; c < q1; c++) {
+        let s = u[c];
+        for (let a = 0; a < q2; a++) s -= this.l21[a * q1 + c] * u[q1 + a];
+        u[c] = s;
+      }
+    }
+    for (let l = 0; l < m1; l++) backSolveTransposeInPlace(this.l11, k1, u, k1, l * k1 * k1, l * k1);
+    const b = new Float64Array(q);
+    for (let s = 0; s < this.terms.length; s++) {
+      const t = this.terms[s];
+      const T = this.templates[s];
+      for (let l = 0; l < t.m; l++) {
+        const base = t.start + l * t.k;
+        for (let i = 0; i < t.k; i++) {
+          let sum = 0;
+          for (let j = 0; j <= i; j++) sum += T[i * t.k + j] * u[base + j];
+          b[base + i] = sum;
+        }
+      }
+    }
+    return { u, b };
+  }
+
+  /**
+   * Diagonal k×k blocks of (ΛᵀZᵀZΛ + I)⁻¹ per term and level, via W = L⁻¹ in block form
+   * (W11 = L11⁻¹, W21 = −L22⁻¹ L21 L11⁻¹, W22 = L22⁻¹; A⁻¹ = WᵀW).
+   * Returned in term order: blocks[s][l*k*k + a*k + b].
+   */
+  inverseDiagonalBlocks(): Float64Array[] {
+    const { q1, q2, k1, m1, terms } = this;
+    const out = terms.map((t) => new Float64Array(t.m * t.k * t.k));
+    if (!terms.length) return out;
+    // W11 per level
+    const w11 = new Float64Array(m1 * k1 * k1);
+    const col = new Float64Array(Math.max(k1, q2, 1));
+    for (let l = 0; l < m1; l++) {
+      for (let j = 0; j < k1; j++) {
+        col.fill(0, 0, k1);
+        col[j] = 1;
+        forwardSolveInPlace(this.l11, k1, col, k1, l * k1 * k1, 0);
+        for (let i = 0; i < k1; i++) w11[l * k1 * k1 + i * k1 + j] = col[i];
+      }
+    }
+    let w21: Float64Array | null = null;
+    if (q2 > 0) {
+      // C = L21 W11 (q2 × q1), then W21 = −L22⁻¹ C column by column
+      w21 = new Float64Array(q2 * q1);
+      for (let r = 0; r < q2; r++) {
+        for (let l = 0; l < m1; l++) {
+          for (let j = 0; j < k1; j++) {
+            let s = 0;
+            for (let a = j; a < k1; a++) s += this.l21[r * q1 + l * k1 + a] * w11[l * k1 * k1 + a * k1 + j];
+            w21[r * q1 + l * k1 + j] = s;
+          }
+        }
+      }
+      const colq = new Float64Array(q2);
+      for (let c = 0; c < q1; c++) {
+        for (let r = 0; r < q2; r++) colq[r] = w21[r * q1 + c];
+        forwardSolveInPlace(this.l22, q2, colq, q2);
+        for (let r = 0; r < q2; r++) w21[r * q1 + c] = -colq[r];
+      }
+    }
+    const first = out[0];
+    for (let l = 0; l < m1; l++) {
+      for (let a = 0; a < k1; a++) {
+        for (let b = 0; b < k1; b++) {
+          let s = 0;
+          for (let c = 0; c < k1; c++) s += w11[l * k1 * k1 + c * k1 + a] * w11[l * k1 * k1 + c * k1 + b];
+          if (w21) for (let r = 0; r < q2; r++) s += w21[r * q1 + l * k1 + a] * w21[r * q1 + l * k1 + b];
+          first[l * k1 * k1 + a * k1 + b] = s;
+        }
+      }
+    }
+    if (q2 > 0) {
+      // W22ᵀW22 restricted to diagonal blocks: columns of W22 = L22⁻¹
+      const w22 = new Float64Array(q2 * q2);
+      const e = new Float64Array(q2);
+      for (let j = 0; j < q2; j++) {
+        e.fill(0);
+        e[j] = 1;
+        forwardSolveInPlace(this.l22, q2, e, q2);
+        for (let i = 0; i < q2; i++) w22[i * q2 + j] = e[i];
+      }
+      for (let s = 1; s < terms.length; s++) {
+        const t = terms[s];
+        for (let l = 0; l < t.m; l++) {
+          const base = t.start + l * t.k - q1;
+          for (let a = 0; a < t.k; a++) {
+            for (let b = 0; b < t.k; b++) {
+              let sum = 0;
+              for (let r = 0; r < q2; r++) sum += w22[r * q2 + base + a] * w22[r * q2 + base + b];
+              out[s][l * t.k * t.k + a * t.k + b] = sum;
+            }
+          }
+        }
+      }
+    }
+    void col;
+    return out;
+  }
+}

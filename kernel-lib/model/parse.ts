@@ -1,0 +1,317 @@
+/**
+ * Validate a model description (object or JSON text) and fill in every default.
+ *
+ * Rules beyond the field types (see ./types for the shape):
+ * - Unknown keys are rejected, listing the allowed keys.
+ * - A fixed term string with ":" is a two-way interaction of exactly two distinct, non-empty
+ *   column names; an object term `{ column, reference? }` is a categorical main effect.
+ *   The same term twice (also `b:a` after `a:b`) is rejected.
+ * - Grouping factor names are unique. A grouping factor may not also be a fixed main effect
+ *   (choose `as: "fixed"` instead); it may appear inside an interaction.
+ * - `within` names either another group in `groups` (its own nesting is inherited, so the
+ *   labels of plot within site within region read "R1/A/1") or any other column of the table;
+ *   a missing column is caught when the design is built. It may not name the factor itself,
+ *   the response, or close a cycle of groups.
+ * - `reference` and `correlated` are kept whatever `as` is, so switching a factor between
+ *   fixed and random stays a one-field change; each role uses what applies to it.
+ * - `reference` may be given as a number in JSON; it is stored as text, as levels are.
+ * - The interval method is any non-empty text; the fitting engine checks that it knows it.
+ */
+import { QuadratInputError, describeValue, listNames } from './errors';
+import { INTERACTION_SEPARATOR, termColumns, termLabel } from './terms';
+import type {
+  CategoricalTerm,
+  Estimation,
+  FixedTerm,
+  GroupRole,
+  GroupSpec,
+  MissingPolicy,
+  ModelSpec,
+  ResolvedModel,
+} from './types';
+
+const MODEL_KEYS = ['response', 'fixed', 'groups', 'estimation', 'categorical', 'missing', 'interval', 'level'];
+const GROUP_KEYS = ['factor', 'as', 'within', 'slopes', 'correlated', 'reference'];
+const CATEGORICAL_TERM_KEYS = ['column', 'reference'];
+const ROLES: readonly GroupRole[] = ['random', 'fixed'];
+const ESTIMATIONS: readonly Estimation[] = ['REML', 'ML'];
+const MISSING_POLICIES: readonly MissingPolicy[] = ['drop', 'reject'];
+
+export const MODEL_DEFAULTS = {
+  estimation: 'REML' as Estimation,
+  missing: 'drop' as MissingPolicy,
+  interval: 'wald',
+  level: 0.95,
+};
+
+/** Validate `input` (a model object or its JSON text) and return it with every default filled in. */
+export function parseModel(input: unknown, path = 'model'): ResolvedModel {
+  const raw = typeof input === 'string' ? parseJsonText(input, path) : input;
+  const obj = expectPlainObject(raw, path);
+  rejectUnknownKeys(obj, MODEL_KEYS, path);
+
+  const response = expectName(obj.response, `${path}.response`, true);
+  const categorical = parseNameList(obj.categorical, `${path}.categorical`);
+  for (let i = 0; i < categorical.length; i++) {
+    if (categorical[i] === response) {
+      fail(`${path}.categorical[${i}]: the response "${response}" cannot be categorical`, `${path}.categorical[${i}]`);
+    }
+  }
+  const fixed = parseFixedTerms(obj.fixed, `${path}.fixed`, response);
+  const groups = parseGroups(obj.groups, `${path}.groups`, response, fixed, `${path}.fixed`);
+
+  return {
+    response,
+    fixed,
+    groups,
+    estimation: parseChoice(obj.estimation, ESTIMATIONS, MODEL_DEFAULTS.estimation, `${path}.estimation`),
+    categorical,
+    missing: parseChoice(obj.missing, MISSING_POLICIES, MODEL_DEFAULTS.missing, `${path}.missing`),
+    interval: obj.interval === undefined ? MODEL_DEFAULTS.interval : expectName(obj.interval, `${path}.interval`, false),
+    level: parseLevel(obj.level, `${path}.level`),
+  };
+}
+
+/**
+ * A plain JSON-ready copy of a model with every default written out.
+ * `parseModel(modelToJson(m))` deep-equals `parseModel(m)`.
+ */
+export function modelToJson(model: ModelSpec | ResolvedModel): ModelSpec {
+  const m = parseModel(model);
+  return {
+    response: m.response,
+    fixed: m.fixed.map((t) => (typeof t === 'string' ? t : copyCategoricalTerm(t))),
+    groups: m.groups.map(copyGroup),
+    estimation: m.estimation,
+    categorical: [...m.categorical],
+    missing: m.missing,
+    interval: m.interval,
+    level: m.level,
+  };
+}
+
+function copyCategoricalTerm(t: CategoricalTerm): CategoricalTerm {
+  return t.reference === undefined ? { column: t.column } : { column: t.column, reference: t.reference };
+}
+
+function copyGroup(g: GroupSpec): GroupSpec {
+  const out: GroupSpec = { factor: g.factor, as: g.as };
+  if (g.within !== undefined) out.within = g.within;
+  out.slopes = [...(g.slopes ?? [])];
+  if (g.correlated !== undefined) out.correlated = g.correlated;
+  if (g.reference !== undefined) out.reference = g.reference;
+  return out;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Fields
+
+function parseFixedTerms(value: unknown, path: string, response: string): FixedTerm[] {
+  if (value === undefined) return [];
+  const list = expectArray(value, path);
+  const seen = new Map<string, number>();
+  const terms: FixedTerm[] = [];
+  list.forEach((item, i) => {
+    const itemPath = `${path}[${i}]`;
+    const term = parseFixedTerm(item, itemPath);
+    const columns = termColumns(term);
+    for (const c of columns) {
+      if (c === response) fail(`${itemPath}: the response "${response}" cannot be a fixed term`, itemPath);
+    }
+    const key = [...columns].sort().join('\u0000');
+    const earlier = seen.get(key);
+    if (earlier !== undefined) {
+      fail(`${itemPath}: duplicate term "${termLabel(term)}" (same as ${path}[${earlier}])`, itemPath);
+    }
+    seen.set(key, i);
+    terms.push(term);
+  });
+  return terms;
+}
+
+function parseFixedTerm(value: unknown, path: string): FixedTerm {
+  if (typeof value === 'string') {
+    const parts = value.split(INTERACTION_SEPARATOR);
+    if (parts.length === 1) {
+      if (value === '') fail(`${path}: expected a column name, got an empty string`, path);
+      return value;
+    }
+    if (parts.length !== 2 || parts[0] === '' || parts[1] === '') {
+      fail(`${path}: an interaction is "a:b" with exactly two non-empty column names, got ${describeValue(value)}`, path);
+    }
+    if (parts[0] === parts[1]) fail(`${path}: interaction of "${parts[0]}" with itself; name two different columns`, path);
+    return value;
+  }
+  if (isPlainObject(value)) {
+    rejectUnknownKeys(value, CATEGORICAL_TERM_KEYS, path);
+    const column = expectName(value.column, `${path}.column`, true);
+    if (column.includes(INTERACTION_SEPARATOR)) {
+      fail(`${path}.column: expected one column name (interactions are written as a string "a:b"), got ${describeValue(column)}`, `${path}.column`);
+    }
+    const term: CategoricalTerm = { column };
+    if (value.reference !== undefined) term.reference = parseReference(value.reference, `${path}.reference`);
+    return term;
+  }
+  return fail(`${path}: expected a column name, "a:b", or { column, reference }, got ${describeValue(value)}`, path);
+}
+
+function parseGroups(value: unknown, path: string, response: string, fixed: FixedTerm[], fixedPath: string): GroupSpec[] {
+  if (value === undefined) return [];
+  const list = expectArray(value, path);
+  const groups = list.map((item, i) => parseGroup(item, `${path}[${i}]`, response));
+
+  const indexByFactor = new Map<string, number>();
+  groups.forEach((g, i) => {
+    const earlier = indexByFactor.get(g.factor);
+    if (earlier !== undefined) {
+      fail(`${path}[${i}].factor: duplicate grouping factor "${g.factor}" (same as ${path}[${earlier}])`, `${path}[${i}].factor`);
+    }
+    indexByFactor.set(g.factor, i);
+  });
+
+  fixed.forEach((term, j) => {
+    if (typeof term === 'string' && term.includes(INTERACTION_SEPARATOR)) return;
+    const column = termLabel(term);
+    const i = indexByFactor.get(column);
+    if (i !== undefined) {
+      fail(
+        `${path}[${i}].factor: "${column}" is also a fixed term (${fixedPath}[${j}]); ` +
+          `to estimate its level effects as fixed use as: "fixed" and remove the fixed term`,
+        `${path}[${i}].factor`,
+      );
+    }
+  });
+
+  // A cycle of `within` links (a within b, b within a) has no outermost level.
+  groups.forEach((g, i) => {
+    const chain = [g.factor];
+    let outer = g.within;
+    while (outer !== undefined) {
+      if (chain.includes(outer)) {
+        const loop = [...chain, outer].map((f) => `"${f}"`).join(' within ');
+        fail(`${path}[${i}].within: nesting loops back (${loop}); the outermost factor must have no within`, `${path}[${i}].within`);
+      }
+      chain.push(outer);
+      const next = indexByFactor.get(outer);
+      outer = next === undefined ? undefined : groups[next].within;
+    }
+  });
+  return groups;
+}
+
+function parseGroup(value: unknown, path: string, response: string): GroupSpec {
+  const obj = expectPlainObject(value, path);
+  rejectUnknownKeys(obj, GROUP_KEYS, path);
+  const factor = expectName(obj.factor, `${path}.factor`, true);
+  if (factor === response) fail(`${path}.factor: the response "${response}" cannot be a grouping factor`, `${path}.factor`);
+  if (obj.as === undefined) fail(`${path}.as: expected "random" or "fixed" (required)`, `${path}.as`);
+  const as = parseChoice(obj.as, ROLES, 'random', `${path}.as`);
+  const group: GroupSpec = { factor, as };
+
+  if (obj.within !== undefined) {
+    const within = expectName(obj.within, `${path}.within`, true);
+    if (within === factor) fail(`${path}.within: "${factor}" cannot be nested within itself`, `${path}.within`);
+    if (within === response) fail(`${path}.within: cannot nest within the response "${response}"`, `${path}.within`);
+    group.within = within;
+  }
+
+  const slopes = parseNameList(obj.slopes, `${path}.slopes`);
+  slopes.forEach((s, j) => {
+    const p = `${path}.slopes[${j}]`;
+    if (s.includes(INTERACTION_SEPARATOR)) fail(`${p}: expected one numeric column name, got ${describeValue(s)}`, p);
+    if (s === factor) fail(`${p}: "${s}" is the grouping factor itself; a slope needs a numeric column`, p);
+    if (s === response) fail(`${p}: the response "${response}" cannot be a slope`, p);
+    if (s === group.within) fail(`${p}: "${s}" is the outer factor of this group; a slope needs a numeric column`, p);
+  });
+  group.slopes = slopes;
+
+  if (obj.correlated !== undefined) {
+    if (typeof obj.correlated !== 'boolean') {
+      fail(`${path}.correlated: expected true or false, got ${describeValue(obj.correlated)}`, `${path}.correlated`);
+    }
+    group.correlated = obj.correlated;
+  } else if (slopes.length > 0) {
+    group.correlated = true;
+  }
+  if (obj.reference !== undefined) group.reference = parseReference(obj.reference, `${path}.reference`);
+  return group;
+}
+
+function parseLevel(value: unknown, path: string): number {
+  if (value === undefined) return MODEL_DEFAULTS.level;
+  if (typeof value !== 'number' || !Number.isFinite(value) || value <= 0 || value >= 1) {
+    return fail(`${path}: expected a number strictly between 0 and 1 (e.g. 0.95), got ${describeValue(value)}`, path);
+  }
+  return value;
+}
+
+function parseReference(value: unknown, path: string): string {
+  if (typeof value === 'number' && Number.isFinite(value)) return String(value);
+  if (typeof value === 'string' && value !== '') return value;
+  return fail(`${path}: expected a level label (text), got ${describeValue(value)}`, path);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Generic checks
+
+function parseJsonText(text: string, path: string): unknown {
+  try {
+    return JSON.parse(text);
+  } catch (e) {
+    return fail(`${path}: not valid JSON (${(e as Error).message})`, path);
+  }
+}
+
+function isPlainObject(value: unknown): value is Record<string, unknown> {
+  return typeof value === 'object' && value !== null && !Array.isArray(value);
+}
+
+function expectPlainObject(value: unknown, path: string): Record<string, unknown> {
+  if (!isPlainObject(value)) return fail(`${path}: expected an object, got ${describeValue(value)}`, path);
+  return value;
+}
+
+function expectArray(value: unknown, path: string): unknown[] {
+  if (!Array.isArray(value)) return fail(`${path}: expected an array, got ${describeValue(value)}`, path);
+  return value;
+}
+
+function rejectUnknownKeys(obj: Record<string, unknown>, allowed: readonly string[], path: string): void {
+  for (const key of Object.keys(obj)) {
+    if (!allowed.includes(key)) {
+      fail(`${path}: unknown key "${key}"; allowed keys: ${listNames(allowed)}`, `${path}.${key}`);
+    }
+  }
+}
+
+/** A non-empty string. `isColumn` adds the wording "column name" to the message. */
+function expectName(value: unknown, path: string, isColumn: boolean): string {
+  const what = isColumn ? 'a column name' : 'a non-empty text';
+  if (value === undefined) return fail(`${path}: expected ${what} (required)`, path);
+  if (typeof value !== 'string' || value === '') return fail(`${path}: expected ${what}, got ${describeValue(value)}`, path);
+  return value;
+}
+
+function parseNameList(value: unknown, path: string): string[] {
+  if (value === undefined) return [];
+  const list = expectArray(value, path);
+  const seen = new Map<string, number>();
+  return list.map((item, i) => {
+    const name = expectName(item, `${path}[${i}]`, true);
+    const earlier = seen.get(name);
+    if (earlier !== undefined) fail(`${path}[${i}]: duplicate "${name}" (same as ${path}[${earlier}])`, `${path}[${i}]`);
+    seen.set(name, i);
+    return name;
+  });
+}
+
+function parseChoice<T extends string>(value: unknown, choices: readonly T[], fallback: T, path: string): T {
+  if (value === undefined) return fallback;
+  if (typeof value === 'string' && (choices as readonly string[]).includes(value)) return value as T;
+  const expected = choices.map((c) => `"${c}"`).join(' or ');
+  return fail(`${path}: expected ${expected}, got ${describeValue(value)}`, path);
+}
+
+function fail(message: string, field: string): never {
+  throw new QuadratInputError(message, { field });
+}

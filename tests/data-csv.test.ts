@@ -1,0 +1,126 @@
+import { mkdtempSync, rmSync, writeFileSync } from 'fs';
+import { tmpdir } from 'os';
+import { join } from 'path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { parseCsv, readCsvFile } from '../kernel-lib/data/csv';
+import { QuadratInputError } from '../kernel-lib/model/errors';
+
+function inputError(fn: () => unknown): QuadratInputError {
+  try {
+    fn();
+  } catch (e) {
+    expect(e).toBeInstanceOf(QuadratInputError);
+    return e as QuadratInputError;
+  }
+  throw new Error('expected a QuadratInputError, nothing was thrown');
+}
+
+describe('parseCsv: RFC 4180 quoting', () => {
+  it('matches Python csv.reader on quoted delimiters, doubled quotes and quoted line breaks', () => {
+    const text = 'site,note,count\r\nA,"wet, shaded",3\r\n"B","said ""hi""\r\nthen left",4\r\nC,,NA\r\n';
+    // Reference: Python 3.11 csv.reader(io.StringIO(text, newline='')) gives
+    // [['site','note','count'], ['A','wet, shaded','3'], ['B','said "hi"\r\nthen left','4'], ['C','','NA']];
+    // our missing rule then maps '' and 'NA' to null, and "count" is numeric.
+    expect(parseCsv(text)).toEqual({
+      site: ['A', 'B', 'C'],
+      note: ['wet, shaded', 'said "hi"\r\nthen left', null],
+      count: [3, 4, null],
+    });
+  });
+
+  it('reads the RFC 4180 section 2 examples (rules 5-7)', () => {
+    // RFC 4180 §2 rule 6: fields with line breaks, double quotes and commas are enclosed in quotes;
+    // rule 7: a double quote inside a quoted field is escaped by a preceding double quote.
+    const text = 'a,b,c\n"aaa","b\nbb","ccc"\nzzz,yyy,xxx\n"aaa","b""bb","ccc"\n';
+    expect(parseCsv(text)).toEqual({
+      a: ['aaa', 'zzz', 'aaa'],
+      b: ['b\nbb', 'yyy', 'b"bb'],
+      c: ['ccc', 'xxx', 'ccc'],
+    });
+  });
+
+  it('accepts a last record without line break (RFC 4180 §2 rule 2), LF, CR and CRLF endings', () => {
+    // RFC 4180 §2 rule 2: the last record may or may not have an ending line break.
+    expect(parseCsv('x,y\n1,2')).toEqual({ x: [1], y: [2] });
+    expect(parseCsv('x,y\r1,2\r3,4\r')).toEqual({ x: [1, 3], y: [2, 4] });
+    expect(parseCsv('x,y\r\n1,2\r\n')).toEqual({ x: [1], y: [2] });
+  });
+});
+
+describe('parseCsv: values', () => {
+  it('maps empty cells, NA and NaN to null, quoted or not', () => {
+    // Project rule (kernel-lib/data/csv.ts); NA/NaN as missing markers is common practice, no source.
+    expect(parseCsv('v,w\n1,a\nNA,NA\n"",""\nNaN, NA \n2,b\n')).toEqual({
+      v: [1, null, null, null, 2],
+      w: ['a', null, null, null, 'b'],
+    });
+  });
+
+  it('parses a column as numbers only when every non-missing cell is numeric', () => {
+    const cols = parseCsv('a,b,c,d\n1,1,-2.5e-3, 7 \n.5,x,+3,8\n2.,3,1E2,\n');
+    expect(cols.a).toEqual([1, 0.5, 2]);
+    expect(cols.b).toEqual(['1', 'x', '3']);
+    expect(cols.c).toEqual([-0.0025, 3, 100]);
+    expect(cols.d).toEqual([7, 8, null]);
+  });
+
+  it('keeps text exactly, including spaces, a quoted comma and non-decimal number forms', () => {
+    const cols = parseCsv('t\n wet \n0x10\nInfinity\n"1,5"\n');
+    expect(cols.t).toEqual([' wet ', '0x10', 'Infinity', '1,5']);
+  });
+
+  it('gives an all-missing column as nulls', () => {
+    expect(parseCsv('a,b\n1,\n2,NA\n').b).toEqual([null, null]);
+  });
+
+  it('skips blank lines and a byte order mark; keeps the header when there are no data rows', () => {
+    expect(parseCsv('\ufeffx,y\n\n1,2\n\n3,4\n\n')).toEqual({ x: [1, 3], y: [2, 4] });
+    expect(parseCsv('x,y\n')).toEqual({ x: [], y: [] });
+  });
+
+  it('takes another delimiter', () => {
+    expect(parseCsv('x;y\n"1;2";3\n', { delimiter: ';' })).toEqual({ x: ['1;2'], y: [3] });
+  });
+});
+
+describe('parseCsv: errors name the line', () => {
+  it('a record with the wrong number of fields', () => {
+    const e = inputError(() => parseCsv('a,b,c\n1,2,3\n4,5\n'));
+    expect(e.message).toBe('line 3: expected 3 fields as in the header, got 2');
+    expect(e.row).toBe(2);
+  });
+
+  it('counts line breaks inside quoted fields when naming a line', () => {
+    const e = inputError(() => parseCsv('a,b\n"one\ntwo",1\n3,4,5\n'));
+    expect(e.message).toBe('line 4: expected 2 fields as in the header, got 3');
+  });
+
+  it('an unclosed quote, text after a closing quote, bad header, bad delimiter', () => {
+    expect(inputError(() => parseCsv('a,b\n1,"open\n2,3\n')).message).toBe('line 2: a quoted field is not closed');
+    expect(inputError(() => parseCsv('a,b\n1,"x"y\n')).message).toBe(
+      'line 2: unexpected text after a closing quote; a quote inside a quoted field is written ""',
+    );
+    expect(inputError(() => parseCsv('')).message).toBe('csv: no header row; the first line must name the columns');
+    expect(inputError(() => parseCsv('a,,c\n1,2,3\n')).message).toBe('line 1: header field 2 is empty; every column needs a name');
+    expect(inputError(() => parseCsv('a,b,a\n1,2,3\n')).message).toBe('line 1: duplicate column name "a" (fields 1 and 3)');
+    expect(inputError(() => parseCsv('a\n1\n', { delimiter: '"' })).message).toMatch(/^csv delimiter: expected one character/);
+  });
+});
+
+describe('readCsvFile', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'quadrat-csv-'));
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+  it('reads a file and names it in errors', () => {
+    const good = join(dir, 'survey.csv');
+    writeFileSync(good, 'site,cover\nA,0.5\nB,NA\n');
+    expect(readCsvFile(good)).toEqual({ site: ['A', 'B'], cover: [0.5, null] });
+
+    const bad = join(dir, 'bad.csv');
+    writeFileSync(bad, 'site,cover\nA\n');
+    expect(inputError(() => readCsvFile(bad)).message).toBe(`${bad} line 2: expected 2 fields as in the header, got 1`);
+
+    const missing = join(dir, 'nope.csv');
+    expect(inputError(() => readCsvFile(missing)).message).toBe(`${missing}: cannot read the file (ENOENT)`);
+  });
+});

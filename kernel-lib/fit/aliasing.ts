@@ -31,8 +31,13 @@ export function detectAliasing(design: DesignMatrices, priority?: number[]): Ali
     }
   }
   for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) xtx[a * p + b] = xtx[b * p + a];
+  return aliasingFromCrossProducts(xtx, p, p, priority);
+}
+
+/** As detectAliasing, from a symmetric cross-product matrix whose leading p×p block is XᵀX (row stride `stride`). */
+export function aliasingFromCrossProducts(xtx: Float64Array, p: number, stride: number, priority?: number[]): AliasReport {
   const scale = new Float64Array(p);
-  for (let a = 0; a < p; a++) scale[a] = xtx[a * p + a] > 0 ? 1 / Math.sqrt(xtx[a * p + a]) : 0;
+  for (let a = 0; a < p; a++) scale[a] = xtx[a * stride + a] > 0 ? 1 / Math.sqrt(xtx[a * stride + a]) : 0;
   const l = new Float64Array(p * p);
   const estimable: number[] = [];
   const aliased: number[] = [];
@@ -44,7 +49,7 @@ export function detectAliasing(design: DesignMatrices, priority?: number[]): Ali
     let d = 1;
     for (let e = 0; e < estimable.length; e++) {
       const c = estimable[e];
-      let s = xtx[j * p + c] * scale[j] * scale[c];
+      let s = xtx[j * stride + c] * scale[j] * scale[c];
       for (let k = 0; k < e; k++) s -= row[k] * l[e * p + k];
       row[e] = s / l[e * p + e];
       d -= row[e] * row[e];

@@ -1,6 +1,6 @@
 import type { DesignMatrices } from './design';
 import type { ConditionalModeRow, CorrelationRow, FitResult, FixedEffectRow, VarianceComponentRow } from './result';
-import { detectAliasing, restrictColumns } from './aliasing';
+import { aliasingFromCrossProducts, restrictColumns } from './aliasing';
 import { ProfiledDeviance } from './profiled-deviance';
 import { optimiseTheta, BOUNDARY_TOLERANCE } from './optimise-theta';
 import { normalQuantile, studentTQuantile } from '../numeric/distributions';
@@ -28,15 +28,16 @@ export interface FitOptions {
 export function fitDesign(design: DesignMatrices, options: FitOptions = {}): FitResult {
   const level = options.level ?? 0.95;
   const warnings = [...design.warnings];
-  const alias = detectAliasing(design, options.aliasPriority);
+  const ols = design.random.length === 0;
+  const estimation = ols ? 'OLS' : options.estimation ?? 'REML';
+  let dev = new ProfiledDeviance(design, estimation === 'REML');
+  const alias = aliasingFromCrossProducts(dev.crossProducts(), design.p, design.p + 1, options.aliasPriority);
   const aliasedNames = alias.aliased.map((j) => design.fixedNames[j]);
   if (aliasedNames.length) {
     warnings.push(`not estimable (aliased with other columns): ${aliasedNames.join(', ')}`);
   }
   const reduced = restrictColumns(design, alias.estimable);
-  const ols = design.random.length === 0;
-  const estimation = ols ? 'OLS' : options.estimation ?? 'REML';
-  const dev = new ProfiledDeviance(reduced, estimation === 'REML');
+  if (reduced !== design) dev = new ProfiledDeviance(reduced, estimation === 'REML');
   const { n } = reduced;
   const p = reduced.p;
 

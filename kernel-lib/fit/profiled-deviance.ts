@@ -116,8 +116,14 @@ export class ProfiledDeviance {
 
   /** Replace the response (same design): refresh only the cross-products that involve y. */
   setResponse(y: Float64Array): void {
+    if (y.length !== this.n) throw new RangeError(`response has ${y.length} values, the design has ${this.n} observations`);
     this.design = { ...this.design, y };
-    this.buildResponseProducts();
+    this.buildResponseProducts(true);
+  }
+
+  /** [X y]ᵀ[X y] (w×w, row-major, full); its leading p×p block is XᵀX. */
+  crossProducts(): Float64Array {
+    return this.xyxy;
   }
 
   /** Starting θ: identity templates (random-effect SD equal to the residual SD). */
@@ -145,13 +151,15 @@ export class ProfiledDeviance {
     this.z2z2.fill(0);
     if (!terms.length) return;
     const t1 = terms[0];
+    const index1 = t1.term.index;
+    const v1 = t1.term.values;
+    const g1 = this.g1;
     for (let i = 0; i < n; i++) {
-      const l1 = t1.term.index[i];
-      const v1 = t1.term.values;
+      const l1 = index1[i];
       const g = l1 * k1 * k1;
       for (let a = 0; a < k1; a++) {
         const za = v1[i * k1 + a];
-        for (let b = 0; b <= a; b++) this.g1[g + a * k1 + b] += za * v1[i * k1 + b];
+        for (let b = 0; b <= a; b++) g1[g + a * k1 + b] += za * v1[i * k1 + b];
       }
       for (let s = 1; s < terms.length; s++) {
         const ts = terms[s];
@@ -181,40 +189,68 @@ export class ProfiledDeviance {
     for (let a = 0; a < q2; a++) for (let b = a + 1; b < q2; b++) this.z2z2[a * q2 + b] = this.z2z2[b * q2 + a];
   }
 
-  private buildResponseProducts(): void {
+  /**
+   * [X y]ᵀ[X y] and Zᵀ[X y]. With `responseOnly`, only the y column of each is refreshed
+   * (a simulation replicate with the same design). Hand-inlined loops over hoisted locals: this runs
+   * once per replicate over every observation.
+   */
+  private buildResponseProducts(responseOnly = false): void {
     const { n, p, w, terms } = this;
     const { X, y } = this.design;
-    this.zxy.fill(0);
-    this.xyxy.fill(0);
     const xy = this.xyxy;
-    // [X y]ᵀ[X y], lower triangle, then mirrored
-    for (let i = 0; i < n; i++) {
-      const r = i * p;
-      const yi = y[i];
-      for (let a = 0; a < p; a++) {
-        const xa = X[r + a];
-        if (xa === 0) continue;
-        const row = a * w;
-        for (let b = 0; b <= a; b++) xy[row + b] += xa * X[r + b];
-      }
-      const rowY = p * w;
-      for (let b = 0; b < p; b++) xy[rowY + b] += yi * X[r + b];
-      xy[rowY + p] += yi * yi;
+    const zxy = this.zxy;
+    const rowY = p * w;
+    if (responseOnly) {
+      for (let c = 0; c < this.q; c++) zxy[c * w + p] = 0;
+    } else {
+      zxy.fill(0);
     }
+    // column pairs as long strided dot products: far faster than a row loop with tiny inner loops
+    for (let a = 0; a < p; a++) {
+      if (!responseOnly) {
+        for (let b = 0; b <= a; b++) {
+          let sum = 0;
+          for (let i = 0, r = 0; i < n; i++, r += p) sum += X[r + a] * X[r + b];
+          xy[a * w + b] = sum;
+        }
+      }
+      let sy = 0;
+      for (let i = 0, r = 0; i < n; i++, r += p) sy += y[i] * X[r + a];
+      xy[rowY + a] = sy;
+    }
+    let yy = 0;
+    for (let i = 0; i < n; i++) yy += y[i] * y[i];
+    xy[rowY + p] = yy;
     for (let a = 0; a < w; a++) for (let b = a + 1; b < w; b++) xy[a * w + b] = xy[b * w + a];
-    for (const t of terms) {
-      const { index, values } = t.term;
+    for (let s = 0; s < terms.length; s++) {
+      const t = terms[s];
+      const index = t.term.index;
+      const values = t.term.values;
       const k = t.k;
+      const start = t.start;
+      if (k === 1) {
+        for (let i = 0; i < n; i++) {
+          const z = values[i];
+          if (z === 0) continue;
+          const row = (start + index[i]) * w;
+          if (!responseOnly) {
+            const r = i * p;
+            for (let b = 0; b < p; b++) zxy[row + b] += z * X[r + b];
+          }
+          zxy[row + p] += z * y[i];
+        }
+        continue;
+      }
       for (let i = 0; i < n; i++) {
-        const base = (t.start + index[i] * k) * w;
+        const base = (start + index[i] * k) * w;
         const r = i * p;
         const yi = y[i];
         for (let j = 0; j < k; j++) {
           const z = values[i * k + j];
           if (z === 0) continue;
           const row = base + j * w;
-          for (let b = 0; b < p; b++) this.zxy[row + b] += z * X[r + b];
-          this.zxy[row + p] += z * yi;
+          if (!responseOnly) for (let b = 0; b < p; b++) zxy[row + b] += z * X[r + b];
+          zxy[row + p] += z * yi;
         }
       }
     }
@@ -288,6 +324,7 @@ export class ProfiledDeviance {
     this.setTheta(theta);
     const { q1, q2, k1, m1, w, terms } = this;
     const nTerms = terms.length;
+    if (nTerms === 1 && k1 === 1) return this.factorSingleIntercept(theta[0]);
     if (nTerms) {
       // L11: per level, T1ᵀ G T1 + I
       const T1 = this.templates[0];
@@ -380,6 +417,40 @@ export class ProfiledDeviance {
     const bad = choleskyInPlace(M, w);
     if (bad >= 0) {
       // a zero last pivot means a perfect fit (residual sum of squares 0)
+      this.lastFailure = bad === w - 1 ? 'the model fits the response exactly (zero residual variance)' : 'fixed-effect block not positive definite';
+      return false;
+    }
+    this.lastFailure = '';
+    return true;
+  }
+
+  /**
+   * One scalar random effect per level (a random intercept, or a lone slope): L is diagonal,
+   * Lₗ² = θ²gₗ + 1, and M = [X y]ᵀ[X y] − Σₗ (θ²/Lₗ²) sₗsₗᵀ with sₗ the level's Zᵀ[X y] row.
+   */
+  private factorSingleIntercept(theta: number): boolean {
+    const { m1, w } = this;
+    const g1 = this.g1;
+    const zxy = this.zxy;
+    const l11 = this.l11;
+    const r = this.r;
+    const M = this.m;
+    M.set(this.xyxy);
+    const t2 = theta * theta;
+    for (let l = 0; l < m1; l++) {
+      const ll = Math.sqrt(t2 * g1[l] + 1);
+      l11[l] = ll;
+      const f = theta / ll;
+      const row = l * w;
+      for (let a = 0; a < w; a++) r[row + a] = f * zxy[row + a];
+      for (let a = 0; a < w; a++) {
+        const ra = r[row + a];
+        const ma = a * w;
+        for (let b = 0; b <= a; b++) M[ma + b] -= ra * r[row + b];
+      }
+    }
+    const bad = choleskyInPlace(M, w);
+    if (bad >= 0) {
       this.lastFailure = bad === w - 1 ? 'the model fits the response exactly (zero residual variance)' : 'fixed-effect block not positive definite';
       return false;
     }

@@ -5,11 +5,20 @@ import { ProfiledDeviance } from './profiled-deviance';
 import { optimiseTheta, BOUNDARY_TOLERANCE } from './optimise-theta';
 import { normalQuantile, studentTQuantile } from '../numeric/distributions';
 
+/** Interval methods the engine provides. */
+export const INTERVAL_METHODS = ['wald', 'residual-t'] as const;
+export type IntervalMethod = (typeof INTERVAL_METHODS)[number];
+
 export interface FitOptions {
   /** Default 'REML'. Ignored when the model has no random terms (ordinary least squares). */
   estimation?: 'REML' | 'ML';
   /** Interval level. Default 0.95. */
   level?: number;
+  /**
+   * Interval method for fixed effects in a mixed model: 'wald' (normal quantiles) or 'residual-t'
+   * (t quantiles with n − rank(X) df). Default 'wald'. Ordinary least squares always uses exact t intervals.
+   */
+  interval?: IntervalMethod;
   /** Compute conditional modes and their SDs. Default true. */
   modes?: boolean;
   /** Compute fitted values and residuals. Default true. */
@@ -73,9 +82,13 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
   for (let a = 0; a < p; a++) {
     for (let b = 0; b < p; b++) fixedCov[alias.estimable[a] * fullP + alias.estimable[b]] = sigma2 * unscaled[a * p + b];
   }
-  const df = ols ? n - p : Infinity;
-  const method = ols ? 'residual-t' : 'wald';
-  const crit = ols ? studentTQuantile(0.5 + level / 2, df) : normalQuantile(0.5 + level / 2);
+  const method: IntervalMethod = ols ? 'residual-t' : options.interval ?? 'wald';
+  if (!(INTERVAL_METHODS as readonly string[]).includes(method)) {
+    throw new RangeError(`interval method "${method}" is not available; choose one of: ${INTERVAL_METHODS.join(', ')}`);
+  }
+  // residual-t: exact for OLS (any regression text); for mixed models the simple small-sample correction
+  const df = method === 'residual-t' ? n - p : Infinity;
+  const crit = method === 'residual-t' ? studentTQuantile(0.5 + level / 2, df) : normalQuantile(0.5 + level / 2);
   const fixed: FixedEffectRow[] = design.fixedNames.map((term) => ({
     term, estimate: NaN, se: NaN, df, lower: NaN, upper: NaN, method, aliased: true,
   }));

@@ -51,9 +51,9 @@ export interface FitResult {
   correlations: CorrelationRow[];
   residualSd: number;
   /**
-   * Log-likelihood including all constants: for ML the full Gaussian log density of y;
-   * for REML the restricted log-likelihood of Harville (1974) in the profiled form of
-   * Bates and DebRoy (2004), i.e. -0.5 * REML deviance.
+   * Log-likelihood including all constants: for ML (and OLS) the full Gaussian log density of y;
+   * for REML −½[(n−p) log 2π + log|V| + log|XᵀV⁻¹X| + rᵀV⁻¹r], i.e. −½ × the REML deviance of
+   * Bates and DebRoy (2004). Harville's (1974) error-contrast form adds +½ log|XᵀX|, omitted here.
    */
   logLik: number;
   aic: number;

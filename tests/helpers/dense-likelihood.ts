@@ -56,8 +56,9 @@ export function denseMlLogLik(design: DesignMatrices, fit: FitResult): number {
 }
 
 /**
- * REML: Harville (1974, Biometrika 61:383) restricted log-likelihood
- * −½[(n−p) log 2π + log|V| + log|XᵀV⁻¹X| + rᵀV⁻¹r], r = y − Xβ̂ (GLS), without a log|XᵀX| term.
+ * REML: the restricted log-likelihood of Harville (1974, Biometrika 61:383) in the usual form
+ * −½[(n−p) log 2π + log|V| + log|XᵀV⁻¹X| + rᵀV⁻¹r], r = y − Xβ̂ (GLS). Harville's error-contrast
+ * form adds the constant +½ log|XᵀX|; neither this form nor the engine includes it.
  */
 export function denseRemlLogLik(design: DesignMatrices, fit: FitResult): number {
   const V = denseMarginalCovariance(design, fit);

@@ -1,0 +1,28 @@
+import type { FitResult } from '../fit/result';
+import { renderTable, type Cell } from './text-table';
+
+/** Side-by-side fixed effects and variance components of several fits of the same data. */
+export function formatComparison(fits: { name: string; fit: FitResult }[]): string {
+  const terms: string[] = [];
+  for (const { fit } of fits) for (const r of fit.fixed) if (!terms.includes(r.term)) terms.push(r.term);
+  const rows: Cell[][] = [];
+  for (const term of terms) {
+    for (const { name, fit } of fits) {
+      const r = fit.fixed.find((f) => f.term === term);
+      if (!r) continue;
+      rows.push(r.aliased
+        ? [term, name, 'not estimable', '', '', '', '']
+        : [term, name, r.estimate, r.se, r.lower, r.upper, r.upper - r.lower]);
+    }
+  }
+  const out = ['Fixed effects', renderTable(['term', 'model', 'estimate', 'SE', 'lower', 'upper', 'width'], rows)];
+  const vc: Cell[][] = [];
+  for (const { name, fit } of fits) for (const r of fit.random) vc.push([name, r.factor, r.term, r.sd]);
+  out.push('', 'Variance components (SD)', renderTable(['model', 'factor', 'term', 'SD'], vc));
+  const info: Cell[][] = fits.map(({ name, fit }) => [
+    name, fit.estimation, fit.converged ? 'yes' : 'NO', fit.singular ? 'yes' : 'no', fit.logLik, fit.aic,
+  ]);
+  out.push('', renderTable(['model', 'estimation', 'converged', 'singular', 'logLik', 'AIC'], info));
+  out.push('', 'Note: AIC of REML fits with different fixed effects are not comparable.');
+  return out.join('\n');
+}

@@ -1,0 +1,52 @@
+import type { ModelSpec, ResolvedModel } from '../model/types';
+import type { DesignMatrices } from './design';
+import type { FitResult } from './result';
+import { parseModel } from '../model/parse';
+import { buildDesign } from '../data/build-design';
+import { toColumns, type Columns, type TableLike } from '../data/columns';
+import { fitDesign, INTERVAL_METHODS, type FitOptions, type IntervalMethod } from './fit-design';
+import { QuadratInputError } from '../model/errors';
+
+export type SurveyData = Columns | readonly object[] | TableLike;
+
+/**
+ * Order in which X columns claim estimability: the intercept, then the dummies of grouping
+ * factors entered as fixed, then everything else. So with site fixed, a site-level covariate is
+ * the column reported as not estimable, and the site effects stay.
+ */
+export function aliasPriority(design: DesignMatrices, model: ResolvedModel): number[] {
+  const fixedFactors = model.groups.filter((g) => g.as === 'fixed').map((g) => g.factor);
+  const isGroupColumn = (name: string) =>
+    fixedFactors.some((f) => name.startsWith(`${f}[`) || name.includes(`:${f}[`));
+  const first: number[] = [];
+  const group: number[] = [];
+  const rest: number[] = [];
+  design.fixedNames.forEach((name, j) => {
+    if (j === 0 && name === 'intercept') first.push(j);
+    else if (isGroupColumn(name)) group.push(j);
+    else rest.push(j);
+  });
+  return [...first, ...group, ...rest];
+}
+
+/** Fit one model description to a survey table (arquero table, array of records, or columns). */
+export function fitModel(data: SurveyData, model: ModelSpec | ResolvedModel | string, options: FitOptions = {}): FitResult {
+  const resolved = parseModel(model);
+  const interval = checkInterval(options.interval ?? resolved.interval);
+  const design = buildDesign(toColumns(data as Columns), resolved);
+  return fitDesign(design, {
+    estimation: resolved.estimation,
+    level: resolved.level,
+    interval,
+    aliasPriority: aliasPriority(design, resolved),
+    ...options,
+  });
+}
+
+/** The interval method named in a model, checked against what the engine provides. */
+export function checkInterval(name: string, field = 'model.interval'): IntervalMethod {
+  if (!(INTERVAL_METHODS as readonly string[]).includes(name)) {
+    throw new QuadratInputError(`${field}: interval method "${name}" is not available; expected one of: ${INTERVAL_METHODS.join(', ')}`, { field });
+  }
+  return name as IntervalMethod;
+}

@@ -57,7 +57,11 @@ def main():
     result = None
     start = time.perf_counter()
     for _ in range(repeats):
-        result = model.fit(reml=True, method=["lbfgs"])
+        try:
+            result = model.fit(reml=True, method=["lbfgs"])
+        except np.linalg.LinAlgError:
+            # L-BFGS can step onto a singular point near a zero variance; retry as a user would
+            result = model.fit(reml=True, method=["bfgs"])
     seconds = time.perf_counter() - start
     params = {str(k): float(v) for k, v in result.fe_params.items()}
     params["scale"] = float(result.scale)

@@ -1,11 +1,13 @@
 import { QuadratInputError } from '../model/errors';
 import { fitCommand, FIT_USAGE } from './fit-command';
 import { demoCommand } from './demo-command';
+import { studyCommand, STUDY_USAGE } from './study-command';
 
 type Command = (argv: string[], print: (s: string) => void) => number | Promise<number>;
 
 const COMMANDS: Record<string, { run: Command; usage: string }> = {
   fit: { run: fitCommand, usage: FIT_USAGE },
+  study: { run: studyCommand, usage: STUDY_USAGE },
   demo: { run: demoCommand, usage: 'quadrat demo [--out <folder>]' },
 };
 

@@ -1,0 +1,97 @@
+import type { ReplicateKind, ReplicateRow, ReplicateStatus } from './replicate-row';
+
+/**
+ * The per-replicate table on disk: one CSV row per scenario × replicate × variant × parameter.
+ * Numbers are written with JavaScript's shortest round-trip form, so reading gives back the exact
+ * doubles; NaN is an empty cell, infinities are "Inf" / "-Inf".
+ */
+export const REPLICATE_COLUMNS = [
+  'scenario', 'variant', 'replicate', 'parameter', 'kind', 'truth', 'estimate', 'se', 'lower', 'upper', 'df', 'status', 'reason',
+] as const;
+
+export const REPLICATE_HEADER = REPLICATE_COLUMNS.join(',');
+
+function quote(text: string): string {
+  return /[",\n\r]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+function num(v: number): string {
+  if (Number.isNaN(v)) return '';
+  if (v === Infinity) return 'Inf';
+  if (v === -Infinity) return '-Inf';
+  return String(v);
+}
+
+export function replicateRowsToCsv(rows: readonly ReplicateRow[], header = false): string {
+  const out: string[] = header ? [REPLICATE_HEADER] : [];
+  for (const r of rows) {
+    out.push([
+      quote(r.scenario), quote(r.variant), String(r.replicate), quote(r.parameter), r.kind, num(r.truth), num(r.estimate),
+      num(r.se), num(r.lower), num(r.upper), num(r.df), r.status, quote(r.reason),
+    ].join(','));
+  }
+  return out.length ? `${out.join('\n')}\n` : '';
+}
+
+/** Split one CSV record into fields (RFC 4180 quoting); returns the fields and the index after the record. */
+function readRecord(text: string, start: number): { fields: string[]; next: number } {
+  const fields: string[] = [];
+  let i = start;
+  let field = '';
+  while (i <= text.length) {
+    const c = text[i];
+    if (c === '"' && field === '') {
+      i++;
+      while (i < text.length) {
+        if (text[i] === '"') {
+          if (text[i + 1] === '"') { field += '"'; i += 2; continue; }
+          i++;
+          break;
+        }
+        field += text[i++];
+      }
+      continue;
+    }
+    if (c === ',' ) { fields.push(field); field = ''; i++; continue; }
+    if (c === '\n' || c === undefined) { fields.push(field); return { fields, next: i + 1 }; }
+    if (c === '\r') { i++; continue; }
+    field += c;
+    i++;
+  }
+  fields.push(field);
+  return { fields, next: text.length + 1 };
+}
+
+function parseNum(s: string, where: string): number {
+  if (s === '') return NaN;
+  if (s === 'Inf') return Infinity;
+  if (s === '-Inf') return -Infinity;
+  const v = Number(s);
+  if (Number.isNaN(v)) throw new Error(`${where}: expected a number, got "${s}"`);
+  return v;
+}
+
+/** Read replicate rows written by replicateRowsToCsv (with or without the header line). */
+export function parseReplicateCsv(text: string, source = 'replicates'): ReplicateRow[] {
+  const rows: ReplicateRow[] = [];
+  let pos = 0;
+  let line = 0;
+  while (pos < text.length) {
+    const { fields, next } = readRecord(text, pos);
+    pos = next;
+    line++;
+    if (fields.length === 1 && fields[0] === '') continue;
+    if (fields[0] === 'scenario' && fields[1] === 'variant') continue;
+    const where = `${source}, line ${line}`;
+    if (fields.length !== REPLICATE_COLUMNS.length) {
+      throw new Error(`${where}: expected ${REPLICATE_COLUMNS.length} fields, found ${fields.length}`);
+    }
+    rows.push({
+      scenario: fields[0], variant: fields[1], replicate: parseNum(fields[2], where), parameter: fields[3],
+      kind: fields[4] as ReplicateKind, truth: parseNum(fields[5], where), estimate: parseNum(fields[6], where),
+      se: parseNum(fields[7], where), lower: parseNum(fields[8], where), upper: parseNum(fields[9], where),
+      df: parseNum(fields[10], where), status: fields[11] as ReplicateStatus, reason: fields[12],
+    });
+  }
+  return rows;
+}

@@ -1,0 +1,140 @@
+import { buildDesign } from '../data/build-design';
+import type { Columns } from '../data/columns';
+import { fitDesign, INTERVAL_METHODS, type IntervalMethod } from '../fit/fit-design';
+import { aliasPriority } from '../fit/fit-model';
+import type { FitResult } from '../fit/result';
+import { expandGrid, type Scenario } from '../design/grid';
+import { createWorkspace, simulateInto, simulationPlan, type SimulatedData } from '../design/simulate';
+import type { ResolvedVariant, SurveyDesign } from '../design/types';
+import { createStream } from '../random/stream';
+import type { ReplicateRow, ReplicateStatus } from './replicate-row';
+
+/** Name of the SD parameter of a random term ("sd(site)", "sd(site:x)") or of the residual ("sd(residual)"). */
+export function sdParameterName(factor: string, term: string): string {
+  if (factor === 'residual') return 'sd(residual)';
+  return term === 'intercept' ? `sd(${factor})` : `sd(${factor}:${term})`;
+}
+
+/** Extra per-replicate targets a variant can have (realised effects when a random factor enters as fixed). */
+export type RealisedTruthFn = (variant: ResolvedVariant, data: SimulatedData) => Record<string, number>;
+
+/**
+ * Runs replicates of a study: simulate from the replicate's own stream, fit every variant, and
+ * turn each fit into tidy rows. A failing fit becomes rows with status 'failed' and its reason;
+ * it never stops the study.
+ */
+export class ReplicateRunner {
+  readonly scenarios: Scenario[];
+  private readonly workspaces = new Map<number, ReturnType<typeof createWorkspace>>();
+
+  constructor(readonly design: SurveyDesign, private readonly realisedTruth?: RealisedTruthFn) {
+    this.scenarios = expandGrid(design);
+  }
+
+  /** Replicates [from, to) of one scenario, in order: replicate, then variant, then parameter. */
+  runBatch(scenarioIndex: number, from: number, to: number): ReplicateRow[] {
+    const scenario = this.scenarios[scenarioIndex];
+    if (!scenario) throw new RangeError(`scenario ${scenarioIndex} does not exist (the study has ${this.scenarios.length})`);
+    const rows: ReplicateRow[] = [];
+    for (let r = from; r < to; r++) this.runReplicate(scenario, scenarioIndex, r, rows);
+    return rows;
+  }
+
+  /** Simulate one data set of a scenario (the same one runBatch fits). */
+  simulate(scenarioIndex: number, replicate: number): SimulatedData {
+    const scenario = this.scenarios[scenarioIndex];
+    let ws = this.workspaces.get(scenarioIndex);
+    if (!ws) {
+      ws = createWorkspace(simulationPlan(scenario.design));
+      this.workspaces.set(scenarioIndex, ws);
+    }
+    // one stream per (study seed, scenario key, replicate): independent of workers, order and shards
+    return simulateInto(ws, createStream(this.design.seed, scenario.key, replicate));
+  }
+
+  private runReplicate(scenario: Scenario, scenarioIndex: number, replicate: number, rows: ReplicateRow[]): void {
+    const data = this.simulate(scenarioIndex, replicate);
+    for (const variant of scenario.design.variants) {
+      let fit: FitResult | null = null;
+      let reason = '';
+      try {
+        const design = buildDesign(data.columns as Columns, variant.model);
+        fit = fitDesign(design, {
+          estimation: variant.model.estimation,
+          level: variant.model.level,
+          interval: intervalOf(variant),
+          aliasPriority: aliasPriority(design, variant.model),
+          modes: false,
+          fitted: false,
+        });
+        if (fit.failure) reason = fit.failure;
+      } catch (e) {
+        reason = (e as Error).message.split('\n')[0];
+        fit = null;
+      }
+      const realised = fit && variant.realised.length && this.realisedTruth ? this.realisedTruth(variant, data) : null;
+      pushRows(rows, scenario, scenarioIndex, replicate, variant, fit, reason, realised);
+    }
+  }
+}
+
+function intervalOf(variant: ResolvedVariant): IntervalMethod {
+  const m = variant.model.interval;
+  return ((INTERVAL_METHODS as readonly string[]).includes(m) ? m : 'wald') as IntervalMethod;
+}
+
+function fitStatus(fit: FitResult | null, reason: string): ReplicateStatus {
+  if (!fit || reason) return 'failed';
+  if (!fit.converged) return 'nonconverged';
+  if (fit.singular) return 'singular';
+  return 'ok';
+}
+
+function pushRows(
+  rows: ReplicateRow[], scenario: Scenario, scenarioIndex: number, replicate: number, variant: ResolvedVariant,
+  fit: FitResult | null, reason: string, realised: Record<string, number> | null,
+): void {
+  const status = fitStatus(fit, reason);
+  const why = status === 'nonconverged' ? fit!.warnings.find((w) => w.startsWith('did not converge')) ?? 'did not converge' : reason;
+  const base = { scenario: scenario.key, variant: variant.name, replicate };
+  void scenarioIndex;
+  for (const coef of variant.coefficients) {
+    const truth = realised && coef in realised ? realised[coef] : variant.truth[coef] ?? 0;
+    const r = fit?.fixed.find((f) => f.term === coef);
+    if (!fit || !r || status === 'failed') {
+      rows.push({ ...base, parameter: coef, kind: 'fixed', truth, estimate: NaN, se: NaN, lower: NaN, upper: NaN, df: NaN, status: 'failed', reason: why || `coefficient ${coef} not in the fit` });
+    } else if (r.aliased) {
+      rows.push({ ...base, parameter: coef, kind: 'fixed', truth, estimate: NaN, se: NaN, lower: NaN, upper: NaN, df: NaN, status: 'aliased', reason: 'not estimable: aliased with other columns' });
+    } else {
+      rows.push({ ...base, parameter: coef, kind: 'fixed', truth, estimate: r.estimate, se: r.se, lower: r.lower, upper: r.upper, df: r.df, status, reason: status === 'ok' || status === 'singular' ? '' : why });
+    }
+  }
+  for (const [factor, terms] of randomTermsOf(variant)) {
+    for (const term of terms) {
+      const truth = sdTruth(scenario.design, factor, term);
+      const r = fit?.random.find((v) => v.factor === factor && v.term === term);
+      rows.push({
+        ...base, parameter: sdParameterName(factor, term), kind: 'sd', truth,
+        estimate: status === 'failed' || !r ? NaN : r.sd, se: NaN, lower: NaN, upper: NaN, df: NaN,
+        status: status === 'failed' || !r ? 'failed' : status, reason: status === 'ok' || status === 'singular' ? '' : why,
+      });
+    }
+  }
+}
+
+/** Random terms a variant estimates, plus the residual, in model order. */
+function randomTermsOf(variant: ResolvedVariant): [string, string[]][] {
+  const out: [string, string[]][] = [];
+  for (const g of variant.model.groups) {
+    if (g.as === 'random') out.push([g.factor, ['intercept', ...(g.slopes ?? [])]]);
+  }
+  out.push(['residual', ['']]);
+  return out;
+}
+
+/** True SD of a random term: truth.sd for intercepts and the residual, truth.slopes for slopes; 0 when absent. */
+function sdTruth(design: SurveyDesign, factor: string, term: string): number {
+  if (factor === 'residual') return design.truth.sd.residual ?? design.truth.familyParams.residual ?? 0;
+  if (term === 'intercept') return design.truth.sd[factor] ?? 0;
+  return design.truth.slopes[factor]?.[term] ?? 0;
+}

@@ -1,0 +1,224 @@
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
+import { join } from 'node:path';
+import { Worker } from 'node:worker_threads';
+import { parseDesign } from '../design/parse';
+import type { SurveyDesign } from '../design/types';
+import { QuadratInputError } from '../model/errors';
+import { batchFileName, batchesOfShard, planBatches, type Batch, type Shard } from './batch-plan';
+import type { BatchReply, BatchTask } from './batch-worker';
+import { summarise, type MetricRow } from './metrics';
+import { realisedTruthOf } from './realised-truth';
+import { parseReplicateCsv, replicateRowsToCsv } from './replicate-csv';
+import { ReplicateRunner } from './replicate-runner';
+import {
+  assembleReplicates, finishedBatches, fingerprintOf, openStudyFolder, writeAtomic, writeBatch, type StudyManifest,
+} from './study-folder';
+
+export interface StudyProgress {
+  /** Replicates finished in this run (batches already on disk not counted). */
+  done: number;
+  /** Replicates this run has to do. */
+  total: number;
+  /** Replicates already on disk when the run started. */
+  resumed: number;
+  elapsedSeconds: number;
+  replicatesPerSecond: number;
+  secondsLeft: number;
+}
+
+export interface RunStudyOptions {
+  /** Output folder (created; an existing folder of the same study is resumed). */
+  out: string;
+  /** Override the design's replicate count. */
+  replicates?: number;
+  /** Worker threads. Default: all cores. 1 runs in this thread. */
+  workers?: number;
+  /** Run only this slice; merge the shard folders afterwards. */
+  shard?: Shard;
+  /** Replicates per batch (unit of checkpointing). Default 25. Part of the study's identity. */
+  batchSize?: number;
+  onProgress?: (p: StudyProgress) => void;
+  /** Abort: stop handing out batches; finished batches stay on disk. */
+  signal?: AbortSignal;
+}
+
+export interface RunStudyResult {
+  folder: string;
+  scenarios: StudyManifest['scenarios'];
+  batchesRun: number;
+  batchesSkipped: number;
+  /** Every batch of the study (or the shard) is on disk. */
+  complete: boolean;
+  interrupted: boolean;
+  seconds: number;
+  /** Design warnings and pre-run checks (e.g. coefficients a variant cannot estimate). */
+  warnings: string[];
+  /** Summary metrics, when the whole study (not a shard) is complete. */
+  metrics: MetricRow[] | null;
+}
+
+export const DEFAULT_BATCH_SIZE = 25;
+
+/** Where the compiled worker lives: beside this file when compiled, else in dist/ (tests run on sources). */
+function workerPath(): string {
+  const here = join(__dirname, 'batch-worker.js');
+  if (existsSync(here)) return here;
+  const built = join(__dirname, '..', '..', 'dist', 'study', 'batch-worker.js');
+  if (existsSync(built)) return built;
+  throw new Error('the compiled study worker is missing: run "npm run build" first');
+}
+
+/** Resolve the design with an optional replicate override. */
+export function resolveStudyDesign(input: unknown, replicates?: number): { design: SurveyDesign; source: unknown } {
+  let source = typeof input === 'string' ? JSON.parse(input) : input;
+  if (replicates !== undefined) {
+    if (!(Number.isInteger(replicates) && replicates >= 1)) {
+      throw new QuadratInputError(`--replicates: expected a whole number ≥ 1, got ${replicates}`, { field: '--replicates' });
+    }
+    source = { ...(source as object), replicates };
+  }
+  return { design: parseDesign(source), source };
+}
+
+/**
+ * Try replicate 0 of every scenario with every variant before the run: a variant that cannot be
+ * fitted to the simulated data at all stops the study here; coefficients it cannot estimate are
+ * named in a warning and studied as 'aliased'.
+ */
+export function preflight(runner: ReplicateRunner, tries = 5): string[] {
+  const warnings: string[] = [];
+  runner.scenarios.forEach((scenario, s) => {
+    const rows = runner.runBatch(s, 0, Math.min(tries, runner.design.replicates));
+    for (const variant of scenario.design.variants) {
+      const mine = rows.filter((r) => r.variant === variant.name);
+      const failed = mine.filter((r) => r.status === 'failed');
+      // a random draw can defeat one replicate (e.g. every site dry); refuse only when all tries fail
+      if (failed.length === mine.length && mine.length) {
+        throw new QuadratInputError(
+          `design.variants "${variant.name}" cannot be fitted in scenario ${scenario.key} (${tries} trial replicates): ${failed[0].reason}`,
+          { field: 'design.variants' },
+        );
+      }
+      const aliased = [...new Set(mine.filter((r) => r.status === 'aliased').map((r) => r.parameter))];
+      if (aliased.length) {
+        warnings.push(`variant "${variant.name}" (scenario ${scenario.key}) cannot estimate ${aliased.join(', ')}: aliased with its fixed grouping columns; reported as not estimable`);
+      }
+    }
+  });
+  return [...new Set(warnings)];
+}
+
+export async function runStudy(input: unknown, options: RunStudyOptions): Promise<RunStudyResult> {
+  const started = Date.now();
+  const { design, source } = resolveStudyDesign(input, options.replicates);
+  const batchSize = options.batchSize ?? DEFAULT_BATCH_SIZE;
+  const runner = new ReplicateRunner(design, realisedTruthOf);
+  const scenarios = runner.scenarios.map((s, index) => ({ index, key: s.key, values: s.values }));
+  const warnings = [...design.warnings, ...preflight(runner)];
+  const manifest: StudyManifest = {
+    format: 'quadrat-study/1', fingerprint: fingerprintOf(source, design.replicates, batchSize), design: source,
+    replicates: design.replicates, batchSize, scenarios,
+  };
+  openStudyFolder(options.out, manifest);
+  const all = planBatches(scenarios.length, design.replicates, batchSize);
+  const mine = options.shard ? batchesOfShard(all, options.shard) : all;
+  const onDisk = finishedBatches(options.out);
+  const todo = mine.filter((b) => !onDisk.has(batchFileName(b)));
+  const resumed = mine.filter((b) => onDisk.has(batchFileName(b))).reduce((n, b) => n + b.to - b.from, 0);
+  const total = todo.reduce((n, b) => n + b.to - b.from, 0);
+  let done = 0;
+  const report = () => {
+    if (!options.onProgress) return;
+    const elapsed = (Date.now() - started) / 1000;
+    const rate = elapsed > 0 ? done / elapsed : 0;
+    options.onProgress({ done, total, resumed, elapsedSeconds: elapsed, replicatesPerSecond: rate, secondsLeft: rate > 0 ? (total - done) / rate : NaN });
+  };
+  report();
+  const workers = Math.max(1, Math.min(options.workers ?? availableParallelism(), todo.length || 1));
+  let ran = 0;
+  const finish = (b: Batch, csv: string) => {
+    writeBatch(options.out, b, csv);
+    done += b.to - b.from;
+    ran++;
+    report();
+  };
+  if (workers === 1) {
+    for (const b of todo) {
+      if (options.signal?.aborted) break;
+      finish(b, replicateRowsToCsv(runner.runBatch(b.scenario, b.from, b.to)));
+      // let signals and timers through between batches
+      await new Promise((resolve) => setImmediate(resolve));
+    }
+  } else {
+    await runPool(todo, workers, source, options.signal, finish);
+  }
+  const interrupted = Boolean(options.signal?.aborted) && ran < todo.length;
+  const complete = !interrupted && ran === todo.length;
+  let metrics: MetricRow[] | null = null;
+  if (complete && !options.shard) metrics = finalise(options.out, all);
+  return {
+    folder: options.out, scenarios, batchesRun: ran, batchesSkipped: mine.length - todo.length, complete, interrupted,
+    seconds: (Date.now() - started) / 1000, warnings, metrics,
+  };
+}
+
+/** Hand batches to a pool of worker threads, in order; each finished batch is written at once. */
+function runPool(
+  todo: Batch[], count: number, source: unknown, signal: AbortSignal | undefined, finish: (b: Batch, csv: string) => void,
+): Promise<void> {
+  return new Promise((resolve, reject) => {
+    const path = workerPath();
+    let next = 0;
+    let active = 0;
+    let failed = false;
+    const pool: Worker[] = [];
+    const stopAll = () => { for (const w of pool) void w.terminate(); };
+    const dispatch = (w: Worker) => {
+      if (failed || signal?.aborted || next >= todo.length) {
+        if (active === 0) { stopAll(); resolve(); }
+        return;
+      }
+      const b = todo[next++];
+      active++;
+      w.postMessage({ ordinal: b.ordinal, scenario: b.scenario, from: b.from, to: b.to } satisfies BatchTask);
+    };
+    const byOrdinal = new Map(todo.map((b) => [b.ordinal, b]));
+    for (let i = 0; i < count; i++) {
+      const w = new Worker(path, { workerData: { design: source } });
+      pool.push(w);
+      w.on('message', (reply: BatchReply) => {
+        active--;
+        if ('error' in reply) {
+          failed = true;
+          stopAll();
+          reject(new Error(`batch ${reply.ordinal} failed: ${reply.error}`));
+          return;
+        }
+        finish(byOrdinal.get(reply.ordinal)!, reply.csv);
+        dispatch(w);
+      });
+      w.on('error', (e) => { if (!failed) { failed = true; stopAll(); reject(e); } });
+      dispatch(w);
+    }
+    signal?.addEventListener('abort', () => { if (active === 0) { stopAll(); resolve(); } }, { once: true });
+  });
+}
+
+/** Write replicates.csv and the metrics once every batch is on disk. */
+export function finalise(folder: string, batches: Batch[]): MetricRow[] | null {
+  if (!assembleReplicates(folder, batches)) return null;
+  const rows = parseReplicateCsv(readFileSync(join(folder, 'replicates.csv'), 'utf8'), 'replicates.csv');
+  const metrics = summarise(rows);
+  writeAtomic(join(folder, 'metrics.json'), JSON.stringify(metrics, null, 1));
+  writeFileSync(join(folder, 'metrics.csv'), metricsToCsv(metrics));
+  return metrics;
+}
+
+function metricsToCsv(metrics: MetricRow[]): string {
+  const cols = ['scenario', 'variant', 'parameter', 'kind', 'metric', 'value', 'mcse', 'n'] as const;
+  const q = (s: string) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
+  const lines = [cols.join(',')];
+  for (const m of metrics) lines.push(cols.map((c) => (typeof m[c] === 'string' ? q(m[c] as string) : Number.isNaN(m[c] as number) ? '' : String(m[c]))).join(','));
+  return `${lines.join('\n')}\n`;
+}

@@ -1,0 +1,154 @@
+/**
+ * Validate a survey design (object or JSON text) and resolve it: defaults filled in, level
+ * labels made, truth terms and random-effect factors worked out, variants parsed and checked
+ * against the columns the simulation will produce. Errors are QuadratInputError with the field
+ * path first (`design.factors[2].within: unknown factor "sites"; …`); things that do not stop a
+ * study (e.g. variant coefficients without truth) are listed in `warnings`.
+ */
+import { describeValue, listNames } from '../model/errors';
+import { INTERCEPT } from '../model/terms';
+import { createStream } from '../random/stream';
+import { expectArray, expectInteger, expectName, expectNonNegative, expectNumber, expectObject, fail, keyPath, rejectUnknownKeys } from './checks';
+import { columnCatalog } from './columns';
+import { parseCovariates } from './covariates';
+import { parseFactors } from './factors';
+import { RESPONSE_FAMILIES } from './family';
+import { resolveGridPath } from './grid-path';
+import { buildLayout } from './layout';
+import { parseTruth } from './truth';
+import type { GridAxis, GridValue, ResolvedFactor, SurveyDesign, SurveyDesignSpec } from './types';
+import { parseVariants } from './variants';
+
+const DESIGN_KEYS = ['seed', 'replicates', 'factors', 'perCell', 'missing', 'response', 'family', 'covariates', 'unequal', 'truth', 'variants', 'grid'];
+
+export const DESIGN_DEFAULTS = { perCell: 1, missing: 0, response: 'y', family: 'gaussian' };
+
+export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
+  let raw = input;
+  if (typeof input === 'string') {
+    try {
+      raw = JSON.parse(input);
+    } catch (e) {
+      fail(`${path}: not valid JSON (${(e as Error).message})`, path);
+    }
+  }
+  const obj = expectObject(raw, path);
+  rejectUnknownKeys(obj, DESIGN_KEYS, path);
+  const warnings: string[] = [];
+
+  const seed = parseSeed(obj.seed, `${path}.seed`);
+  const replicates = expectInteger(obj.replicates, `${path}.replicates`, 1);
+  const factors = parseFactors(obj.factors, `${path}.factors`);
+  const perCell = obj.perCell === undefined ? DESIGN_DEFAULTS.perCell : expectInteger(obj.perCell, `${path}.perCell`, 1);
+  const missing = obj.missing === undefined ? DESIGN_DEFAULTS.missing : parseProbability(obj.missing, `${path}.missing`);
+
+  const response = obj.response === undefined ? DESIGN_DEFAULTS.response : expectName(obj.response, `${path}.response`);
+  if (response === INTERCEPT) fail(`${path}.response: "${INTERCEPT}" is reserved for the model intercept`, `${path}.response`);
+  factors.forEach((f, i) => {
+    if (f.name === response) fail(`${path}.factors[${i}].name: "${f.name}" is also the response`, `${path}.factors[${i}].name`);
+    if (f.name === INTERCEPT) fail(`${path}.factors[${i}].name: "${INTERCEPT}" is reserved`, `${path}.factors[${i}].name`);
+  });
+
+  const familyName = obj.family === undefined ? DESIGN_DEFAULTS.family : obj.family;
+  const family = typeof familyName === 'string' ? RESPONSE_FAMILIES[familyName] : undefined;
+  if (family === undefined) {
+    fail(`${path}.family: expected one of ${listNames(Object.keys(RESPONSE_FAMILIES))}, got ${describeValue(familyName)}`, `${path}.family`);
+  }
+
+  const covariates = parseCovariates(obj.covariates, `${path}.covariates`, factors);
+  covariates.forEach((c, i) => {
+    if (c.name === response || c.name === INTERCEPT) fail(`${path}.covariates[${i}].name: "${c.name}" is reserved or the response`, `${path}.covariates[${i}].name`);
+  });
+
+  const unequal = parseUnequal(obj.unequal, `${path}.unequal`, factors, perCell, seed);
+  const layout = buildLayout(factors, perCell, unequal);
+  const catalog = columnCatalog(response, factors, covariates);
+  if (obj.truth === undefined) fail(`${path}.truth: expected an object with fixed and sd (required)`, `${path}.truth`);
+  const truth = parseTruth(obj.truth, `${path}.truth`, catalog, factors, family, warnings);
+  if (obj.variants === undefined) fail(`${path}.variants: expected an array of { name, model } (required)`, `${path}.variants`);
+  const variants = parseVariants(obj.variants, `${path}.variants`, { catalog, factors, layout, truth }, warnings);
+  const grid = parseGrid(obj.grid, `${path}.grid`, obj);
+
+  const design: SurveyDesign = {
+    seed,
+    replicates,
+    response,
+    family: family.name,
+    factors,
+    perCell,
+    missing,
+    covariates,
+    truth,
+    variants,
+    grid,
+    warnings,
+    source: JSON.parse(JSON.stringify(obj)) as SurveyDesignSpec,
+  };
+  if (unequal !== undefined) design.unequal = unequal;
+  return design;
+}
+
+function parseSeed(value: unknown, path: string): number | string {
+  if (typeof value === 'string' && value !== '') return value;
+  if (typeof value === 'number' && Number.isFinite(value)) return value;
+  return fail(`${path}: expected a number or a non-empty text (required), got ${describeValue(value)}`, path);
+}
+
+function parseProbability(value: unknown, path: string): number {
+  const p = expectNumber(value, path);
+  if (p < 0 || p >= 1) fail(`${path}: expected a probability in [0, 1), got ${p}`, path);
+  return p;
+}
+
+/** Sizes per level of the factor; from `cv`, drawn once from the design seed (see UnequalSpec). */
+function parseUnequal(
+  value: unknown,
+  path: string,
+  factors: readonly ResolvedFactor[],
+  perCell: number,
+  seed: number | string,
+): { factor: string; sizes: number[] } | undefined {
+  if (value === undefined) return undefined;
+  const obj = expectObject(value, path);
+  rejectUnknownKeys(obj, ['factor', 'sizes', 'cv'], path);
+  const name = expectName(obj.factor, `${path}.factor`);
+  const factor = factors.find((f) => f.name === name);
+  if (factor === undefined) fail(`${path}.factor: unknown factor "${name}"; factors: ${listNames(factors.map((f) => f.name))}`, `${path}.factor`);
+  if ((obj.sizes === undefined) === (obj.cv === undefined)) fail(`${path}: give exactly one of sizes and cv`, path);
+  if (obj.sizes !== undefined) {
+    const list = expectArray(obj.sizes, `${path}.sizes`);
+    if (list.length !== factor.totalLevels) {
+      fail(`${path}.sizes: expected ${factor.totalLevels} sizes (one per level of "${name}"), got ${list.length}`, `${path}.sizes`);
+    }
+    return { factor: name, sizes: list.map((s, j) => expectInteger(s, `${path}.sizes[${j}]`, 1)) };
+  }
+  const cv = expectNonNegative(obj.cv, `${path}.cv`);
+  // Log-normal with mean 1: sigma² = ln(1 + cv²), m = exp(sigma z - sigma²/2) (Johnson, Kotz and Balakrishnan,
+  // Continuous Univariate Distributions vol. 1, 2nd ed., ch. 14).
+  const sigma2 = Math.log(1 + cv * cv);
+  const sigma = Math.sqrt(sigma2);
+  const stream = createStream(seed, 'unequal', name);
+  const sizes = new Array<number>(factor.totalLevels);
+  for (let j = 0; j < sizes.length; j++) sizes[j] = Math.max(1, Math.round(perCell * Math.exp(sigma * stream.normal() - sigma2 / 2)));
+  return { factor: name, sizes };
+}
+
+function parseGrid(value: unknown, path: string, source: Record<string, unknown>): GridAxis[] {
+  if (value === undefined) return [];
+  const obj = expectObject(value, path);
+  return Object.keys(obj).map((key) => {
+    const p = keyPath(path, key);
+    resolveGridPath(source, key, p);
+    const list = expectArray(obj[key], p);
+    if (list.length === 0) fail(`${p}: expected at least one value`, p);
+    const seen = new Set<GridValue>();
+    const values = list.map((v, j) => {
+      const q = `${p}[${j}]`;
+      if (!(typeof v === 'string' || (typeof v === 'number' && Number.isFinite(v)))) fail(`${q}: expected a number or text, got ${describeValue(v)}`, q);
+      if (seen.has(v)) fail(`${q}: duplicate value ${describeValue(v)}`, q);
+      seen.add(v);
+      return v;
+    });
+    return { path: key, values };
+  });
+}

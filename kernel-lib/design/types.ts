@@ -1,0 +1,206 @@
+/**
+ * The survey design: the layout of a grouped field survey, the truth that generates its
+ * responses, the analysis variants to compare, and a grid of scenarios. The JSON form is
+ * SurveyDesignSpec; parseDesign (./parse) checks it and returns a SurveyDesign with every
+ * default filled in and everything the simulator needs worked out.
+ */
+import type { ModelSpec, ResolvedModel } from '../model/types';
+
+// ---------------------------------------------------------------------------------------------
+// JSON form
+
+export interface FactorSpec {
+  name: string;
+  /** Number of levels; for a nested factor, levels per level of the outer factor. */
+  levels: number;
+  /** Outer factor this one is nested in. Without it, factors are crossed. */
+  within?: string;
+}
+
+export interface NormalSpec {
+  mean: number;
+  sd: number;
+}
+
+export interface UniformSpec {
+  min: number;
+  max: number;
+}
+
+/**
+ * A normal covariate whose values partly vary between levels of `factor`:
+ * x = mean + sd · (√strength · a_g + √(1 − strength) · e), a_g per level g of the factor and e per
+ * unit (observation or level of `varies`) both standard normal. The population variance stays
+ * sd², and the share `strength` of it lies between levels of the factor (intraclass correlation).
+ */
+export interface ConfoundingSpec {
+  factor: string;
+  /** In [0, 1]. */
+  strength: number;
+}
+
+export interface CovariateSpec {
+  name: string;
+  /** "observation" (a new value per row) or a factor name (one value per level of that factor). */
+  varies: string;
+  /** Exactly one of normal, uniform, categories. */
+  normal?: NormalSpec;
+  uniform?: UniformSpec;
+  /** Category label -> probability (summing to 1). Reference level: first label in sorted order. */
+  categories?: Record<string, number>;
+  /** Only with `normal`. */
+  confounding?: ConfoundingSpec;
+}
+
+/**
+ * Unequal numbers of observations: cells under level j of `factor` hold sizes[j] observations
+ * instead of perCell. With `cv` instead of sizes, sizes are perCell · m_j rounded (at least 1),
+ * m_j log-normal with mean 1 and coefficient of variation cv, drawn once from the design seed
+ * so the layout is the same in every replicate (a survey's layout is fixed; its values vary).
+ */
+export interface UnequalSpec {
+  factor: string;
+  sizes?: number[];
+  cv?: number;
+}
+
+export interface TruthSpec {
+  /**
+   * Coefficients of the data-generating linear predictor, by coefficient name: "intercept",
+   * a numeric covariate ("rain"), a non-reference level ("habitat[wet]", "year[year2]"), or a
+   * two-way product of those ("rain:habitat[wet]"). Missing coefficients are 0.
+   */
+  fixed?: Record<string, number>;
+  /** Standard deviation of the random intercept by factor name, and family parameters (`residual`). */
+  sd: Record<string, number>;
+  /** Random-slope SDs: factor -> numeric covariate -> SD of that covariate's slope across levels. */
+  slopes?: Record<string, Record<string, number>>;
+  /** Correlations of a factor's random effects: factor -> "intercept:rain" (or "a:b" of two slopes) -> r. Default 0. */
+  correlations?: Record<string, Record<string, number>>;
+}
+
+export interface VariantSpec {
+  name: string;
+  model: ModelSpec;
+}
+
+export type GridValue = number | string;
+
+export interface SurveyDesignSpec {
+  seed: number | string;
+  replicates: number;
+  factors: FactorSpec[];
+  /** Observations per cell (each combination of levels, nested levels included). Default 1. */
+  perCell?: number;
+  /** Probability that an observation is dropped, in [0, 1). Default 0. */
+  missing?: number;
+  /** Name of the response column. Default "y". */
+  response?: string;
+  /** Response family. Default "gaussian". */
+  family?: string;
+  covariates?: CovariateSpec[];
+  unequal?: UnequalSpec;
+  truth: TruthSpec;
+  variants: VariantSpec[];
+  /** Dotted path into this JSON -> values to try (see ./grid). */
+  grid?: Record<string, GridValue[]>;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Resolved form
+
+export interface ResolvedFactor {
+  name: string;
+  /** Levels per outer level (as given). */
+  levels: number;
+  within?: string;
+  /** Levels in the whole survey: levels × (outer factor's total). */
+  totalLevels: number;
+  /** Label of each level, e.g. "site01"; sorted text order equals level order. */
+  labels: string[];
+  /** For a nested factor: the outer factor's level of each of this factor's levels. */
+  outerLevel?: Int32Array;
+}
+
+export type ResolvedCovariate =
+  | { kind: 'normal'; name: string; varies: string; mean: number; sd: number; confounding?: ConfoundingSpec }
+  | { kind: 'uniform'; name: string; varies: string; min: number; max: number }
+  | { kind: 'categorical'; name: string; varies: string; levels: string[]; probabilities: number[] };
+
+/** One factor of a truth term: a numeric column, or the indicator of one level of a text column. */
+export type TruthPart = { kind: 'numeric'; column: string } | { kind: 'level'; column: string; level: string };
+
+export interface TruthTerm {
+  /** Name as written in truth.fixed. */
+  name: string;
+  /** Order-free form ("a:b" sorted), used to match model coefficients. */
+  canonical: string;
+  value: number;
+  /** Empty for the intercept. */
+  parts: TruthPart[];
+}
+
+/** Random effects of one factor: intercept and slopes with their covariance. */
+export interface RandomTruth {
+  factor: string;
+  /** "intercept", then slope covariate names. */
+  terms: string[];
+  sd: number[];
+  /** k × k correlation matrix, row-major. */
+  correlation: Float64Array;
+  /** Lower-triangular L with L Lᵀ = covariance, row-major k × k (zero columns where a variance is 0). */
+  cholesky: Float64Array;
+}
+
+export interface ResolvedTruth {
+  fixed: Record<string, number>;
+  sd: Record<string, number>;
+  slopes: Record<string, Record<string, number>>;
+  correlations: Record<string, Record<string, number>>;
+  terms: TruthTerm[];
+  random: RandomTruth[];
+  /** Family parameters (e.g. residual). */
+  familyParams: Record<string, number>;
+}
+
+export interface ResolvedVariant {
+  name: string;
+  model: ResolvedModel;
+  /** Fixed-effect coefficient names the variant estimates. */
+  coefficients: string[];
+  /** Grouping factors entered as fixed: their level names as the model sees them (sorted) and reference. */
+  fixedGroups: { factor: string; levels: string[]; reference: string }[];
+  /** Truth of each coefficient from truth.fixed (0 where it names none). */
+  truth: Record<string, number>;
+  /**
+   * Coefficients whose target differs in each replicate: when a grouping factor that has random
+   * truth enters as fixed, its level coefficients (and the intercept) estimate realised effects
+   * (see realisedTruth in ./realised-truth), not the values in `truth`.
+   */
+  realised: string[];
+}
+
+export interface GridAxis {
+  path: string;
+  values: GridValue[];
+}
+
+export interface SurveyDesign {
+  seed: number | string;
+  replicates: number;
+  response: string;
+  family: string;
+  factors: ResolvedFactor[];
+  perCell: number;
+  missing: number;
+  covariates: ResolvedCovariate[];
+  /** Observations per cell for each level of `factor` (resolved from sizes or cv). */
+  unequal?: { factor: string; sizes: number[] };
+  truth: ResolvedTruth;
+  variants: ResolvedVariant[];
+  grid: GridAxis[];
+  /** Things worth knowing that do not stop the study (e.g. coefficients without truth). */
+  warnings: string[];
+  /** A copy of the JSON input, for the grid to rewrite. */
+  source: SurveyDesignSpec;
+}

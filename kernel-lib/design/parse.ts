@@ -67,7 +67,10 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
   const truth = parseTruth(obj.truth, `${path}.truth`, catalog, factors, family, warnings);
   if (obj.variants === undefined) fail(`${path}.variants: expected an array of { name, model } (required)`, `${path}.variants`);
   const variants = parseVariants(obj.variants, `${path}.variants`, { catalog, factors, layout, truth }, warnings);
-  const grid = parseGrid(obj.grid, `${path}.grid`, obj);
+  // The copy kept for the grid has the defaults written out, so a grid can vary them too.
+  const source = JSON.parse(JSON.stringify(obj)) as Record<string, unknown>;
+  for (const [key, value] of Object.entries(DESIGN_DEFAULTS)) if (source[key] === undefined) source[key] = value;
+  const grid = parseGrid(obj.grid, `${path}.grid`, source);
 
   const design: SurveyDesign = {
     seed,
@@ -82,7 +85,7 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
     variants,
     grid,
     warnings,
-    source: JSON.parse(JSON.stringify(obj)) as SurveyDesignSpec,
+    source: source as unknown as SurveyDesignSpec,
   };
   if (unequal !== undefined) design.unequal = unequal;
   return design;

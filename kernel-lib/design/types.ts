@@ -168,8 +168,11 @@ export interface ResolvedVariant {
   model: ResolvedModel;
   /** Fixed-effect coefficient names the variant estimates. */
   coefficients: string[];
-  /** Grouping factors entered as fixed: their level names as the model sees them (sorted) and reference. */
-  fixedGroups: { factor: string; levels: string[]; reference: string }[];
+  /**
+   * Grouping factors entered as fixed: their level names as the model sees them (sorted; "outer/own"
+   * with `within`), the design level (label order) of each, and the reference name.
+   */
+  fixedGroups: { factor: string; levels: string[]; designLevel: number[]; reference: string }[];
   /** Truth of each coefficient from truth.fixed (0 where it names none). */
   truth: Record<string, number>;
   /**
@@ -201,6 +204,6 @@ export interface SurveyDesign {
   grid: GridAxis[];
   /** Things worth knowing that do not stop the study (e.g. coefficients without truth). */
   warnings: string[];
-  /** A copy of the JSON input, for the grid to rewrite. */
+  /** A copy of the JSON input with top-level defaults written out, for the grid to rewrite. */
   source: SurveyDesignSpec;
 }

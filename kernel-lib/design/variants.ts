@@ -44,7 +44,10 @@ export function parseVariants(value: unknown, path: string, ctx: VariantContext,
       .filter((g) => g.as === 'fixed')
       .map((g) => {
         const ls = levels.get(g.factor)!;
-        return { factor: g.factor, levels: ls, reference: g.reference ?? ls[0] };
+        const own = ctx.factors.find((f) => f.name === g.factor)!.labels;
+        // The last part of an "outer/own" name is the factor's own (survey-wide unique) label.
+        const designLevel = ls.map((name) => own.indexOf(name.split(NESTING_SEPARATOR).pop()!));
+        return { factor: g.factor, levels: ls, designLevel, reference: g.reference ?? ls[0] };
       });
     return { name, model, coefficients, fixedGroups, ...attachTruth(name, p, model, coefficients, ctx, warnings) };
   });

@@ -23,14 +23,25 @@ function num(v: number): string {
 }
 
 export function replicateRowsToCsv(rows: readonly ReplicateRow[], header = false): string {
-  const out: string[] = header ? [REPLICATE_HEADER] : [];
+  let out = header ? `${REPLICATE_HEADER}\n` : '';
+  // the leading text fields, truth and df repeat from row to row: format each distinct value once
+  const textCache = new Map<string, string>();
+  const numCache = new Map<number, string>();
+  const text = (s: string) => {
+    let t = textCache.get(s);
+    if (t === undefined) { t = quote(s); textCache.set(s, t); }
+    return t;
+  };
+  const repeated = (v: number) => {
+    let t = numCache.get(v);
+    if (t === undefined) { t = num(v); numCache.set(v, t); }
+    return t;
+  };
   for (const r of rows) {
-    out.push([
-      quote(r.scenario), quote(r.variant), String(r.replicate), quote(r.parameter), r.kind, num(r.truth), num(r.estimate),
-      num(r.se), num(r.lower), num(r.upper), num(r.df), r.status, quote(r.reason),
-    ].join(','));
+    out += `${text(r.scenario)},${text(r.variant)},${r.replicate},${text(r.parameter)},${r.kind},${repeated(r.truth)},` +
+      `${num(r.estimate)},${num(r.se)},${num(r.lower)},${num(r.upper)},${repeated(r.df)},${r.status},${text(r.reason)}\n`;
   }
-  return out.length ? `${out.join('\n')}\n` : '';
+  return out;
 }
 
 /** Split one CSV record into fields (RFC 4180 quoting); returns the fields and the index after the record. */

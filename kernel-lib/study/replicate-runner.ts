@@ -73,7 +73,7 @@ export class ReplicateRunner {
         fit = null;
       }
       const realised = fit && variant.realised.length && this.realisedTruth ? this.realisedTruth(variant, data) : null;
-      pushRows(rows, scenario, scenarioIndex, replicate, variant, fit, reason, realised);
+      pushRows(rows, scenario, replicate, variant, fit, reason, realised);
     }
   }
 }
@@ -90,34 +90,43 @@ function fitStatus(fit: FitResult | null, reason: string): ReplicateStatus {
   return 'ok';
 }
 
+/** One row, built with a fixed field order so every row shares one object shape. */
+function makeRow(
+  scenario: string, variant: string, replicate: number, parameter: string, kind: 'fixed' | 'sd', truth: number,
+  estimate: number, se: number, lower: number, upper: number, df: number, status: ReplicateStatus, reason: string,
+): ReplicateRow {
+  return { scenario, variant, replicate, parameter, kind, truth, estimate, se, lower, upper, df, status, reason };
+}
+
 function pushRows(
-  rows: ReplicateRow[], scenario: Scenario, scenarioIndex: number, replicate: number, variant: ResolvedVariant,
+  rows: ReplicateRow[], scenario: Scenario, replicate: number, variant: ResolvedVariant,
   fit: FitResult | null, reason: string, realised: Record<string, number> | null,
 ): void {
   const status = fitStatus(fit, reason);
   const why = status === 'nonconverged' ? fit!.warnings.find((w) => w.startsWith('did not converge')) ?? 'did not converge' : reason;
-  const base = { scenario: scenario.key, variant: variant.name, replicate };
-  void scenarioIndex;
+  const key = scenario.key;
+  const name = variant.name;
+  const usable = status === 'ok' || status === 'singular';
   for (const coef of variant.coefficients) {
     const truth = realised && coef in realised ? realised[coef] : variant.truth[coef] ?? 0;
-    const r = fit?.fixed.find((f) => f.term === coef);
+    let r = null;
+    if (fit) for (const f of fit.fixed) if (f.term === coef) { r = f; break; }
     if (!fit || !r || status === 'failed') {
-      rows.push({ ...base, parameter: coef, kind: 'fixed', truth, estimate: NaN, se: NaN, lower: NaN, upper: NaN, df: NaN, status: 'failed', reason: why || `coefficient ${coef} not in the fit` });
+      rows.push(makeRow(key, name, replicate, coef, 'fixed', truth, NaN, NaN, NaN, NaN, NaN, 'failed', why || `coefficient ${coef} not in the fit`));
     } else if (r.aliased) {
-      rows.push({ ...base, parameter: coef, kind: 'fixed', truth, estimate: NaN, se: NaN, lower: NaN, upper: NaN, df: NaN, status: 'aliased', reason: 'not estimable: aliased with other columns' });
+      rows.push(makeRow(key, name, replicate, coef, 'fixed', truth, NaN, NaN, NaN, NaN, NaN, 'aliased', 'not estimable: aliased with other columns'));
     } else {
-      rows.push({ ...base, parameter: coef, kind: 'fixed', truth, estimate: r.estimate, se: r.se, lower: r.lower, upper: r.upper, df: r.df, status, reason: status === 'ok' || status === 'singular' ? '' : why });
+      rows.push(makeRow(key, name, replicate, coef, 'fixed', truth, r.estimate, r.se, r.lower, r.upper, r.df, status, usable ? '' : why));
     }
   }
   for (const [factor, terms] of randomTermsOf(variant)) {
     for (const term of terms) {
       const truth = sdTruth(scenario.design, factor, term);
-      const r = fit?.random.find((v) => v.factor === factor && v.term === term);
-      rows.push({
-        ...base, parameter: sdParameterName(factor, term), kind: 'sd', truth,
-        estimate: status === 'failed' || !r ? NaN : r.sd, se: NaN, lower: NaN, upper: NaN, df: NaN,
-        status: status === 'failed' || !r ? 'failed' : status, reason: status === 'ok' || status === 'singular' ? '' : why,
-      });
+      let r = null;
+      if (fit) for (const v of fit.random) if (v.factor === factor && v.term === term) { r = v; break; }
+      const bad = status === 'failed' || !r;
+      rows.push(makeRow(key, name, replicate, sdParameterName(factor, term), 'sd', truth, bad ? NaN : r!.sd, NaN, NaN, NaN, NaN,
+        bad ? 'failed' : status, usable ? '' : why));
     }
   }
 }

@@ -303,9 +303,25 @@ describe('summarise: edge cases and bad input', () => {
     expect(() => summarise([{ ...good, estimate: '1' as unknown as number }])).toThrow(/row 0: field 'estimate'/);
     expect(() => summarise([{ ...good, se: -1 }])).toThrow(/row 0: field 'se'/);
     expect(() => summarise([{ ...good, lower: 2, upper: 1 }])).toThrow(/row 0: field 'lower'/);
-    expect(() => summarise([good, { ...good, replicate: 2, truth: 5 }])).toThrow(/row 1: field 'truth'/);
+    expect(() => summarise([good, { ...good, replicate: 2, truth: NaN }])).toThrow(/row 1: field 'truth'/);
     expect(() => summarise([good, { ...good, replicate: 2, kind: 'sd' }])).toThrow(/row 1: field 'kind'/);
     expect(() => summarise([good, { ...good }])).toThrow(/at most one row per replicate/);
+  });
+
+  // A random factor entered as fixed: its coefficients estimate this replicate's realised effects,
+  // so each row carries its own truth. Hand computation (Morris et al. 2019, Table 6, with the
+  // error est_i − truth_i in place of est_i − θ): errors 0.5 and 0 -> bias 0.25, MCSE sd(0.5, 0)/√2
+  // = 0.353553/1.414214 = 0.25; coverage: [0.8, 1.2] misses 0.5, [2, 4] holds 3 -> 0.5.
+  it('uses each row\'s truth when the target varies by replicate', () => {
+    const a = row({ replicate: 1, parameter: 'year[y2]', estimate: 1, truth: 0.5, se: 0.1, lower: 0.8, upper: 1.2 });
+    const b = row({ replicate: 2, parameter: 'year[y2]', estimate: 3, truth: 3, se: 0.5, lower: 2, upper: 4 });
+    const metrics = summarise([a, b]);
+    const bias = metrics.find((m) => m.metric === 'bias')!;
+    expect(bias.value).toBeCloseTo(0.25, 12);
+    expect(bias.mcse).toBeCloseTo(0.25, 12);
+    expect(bias.note).toContain('target varies');
+    expect(metrics.find((m) => m.metric === 'coverage')!.value).toBe(0.5);
+    expect(metrics.some((m) => m.metric === 'relativeBias')).toBe(false);
   });
 
   it('rejects inconsistent options', () => {

@@ -14,7 +14,7 @@ import {
 import { isNestedWithin } from './factors';
 import type { ResolvedCovariate, ResolvedFactor } from './types';
 
-const COVARIATE_KEYS = ['name', 'varies', 'normal', 'uniform', 'categories', 'confounding'];
+const COVARIATE_KEYS = ['name', 'varies', 'normal', 'uniform', 'categories', 'confounding', 'allocation'];
 const DISTRIBUTIONS = ['normal', 'uniform', 'categories'];
 export const OBSERVATION = 'observation';
 
@@ -46,6 +46,12 @@ export function parseCovariates(value: unknown, path: string, factors: readonly 
     if (given.length !== 1) {
       fail(`${p}: give exactly one of normal, uniform, categories (got ${given.length === 0 ? 'none' : given.join(' and ')})`, p);
     }
+    if (obj.allocation !== undefined && (given[0] !== 'categories' || (obj.allocation !== 'random' && obj.allocation !== 'balanced'))) {
+      fail(`${p}.allocation: expected "random" or "balanced" with categories, got ${describeValue(obj.allocation)}${given[0] !== 'categories' ? ` with ${given[0]}` : ''}`, `${p}.allocation`);
+    }
+    if (obj.allocation === 'balanced' && varies === OBSERVATION) {
+      fail(`${p}.allocation: "balanced" needs a covariate that varies by a factor (one category per level), not by observation`, `${p}.allocation`);
+    }
     if (obj.confounding !== undefined && given[0] !== 'normal') {
       fail(`${p}.confounding: only a normal covariate can be confounded with a factor`, `${p}.confounding`);
     }
@@ -74,7 +80,10 @@ export function parseCovariates(value: unknown, path: string, factors: readonly 
         return { kind: 'uniform', name, varies, min, max };
       }
       default:
-        return { kind: 'categorical', name, varies, ...parseCategories(obj.categories, `${p}.categories`) };
+        return {
+          kind: 'categorical', name, varies, ...parseCategories(obj.categories, `${p}.categories`),
+          allocation: obj.allocation === 'balanced' ? 'balanced' : 'random',
+        };
     }
   });
 }

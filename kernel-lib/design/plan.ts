@@ -38,7 +38,25 @@ export class CompiledCovariate {
     readonly levelValue: Float64Array,
     /** Confounding shifts per level of the confounding factor for this replicate. */
     readonly shift: Float64Array,
+    /** Balanced allocation of a level-varying categorical covariate: category codes to shuffle, or null. */
+    readonly balancedCodes: Int32Array | null = null,
   ) {}
+}
+
+/**
+ * Category codes for balanced allocation over `units` units: round(p × units) of each category by
+ * the largest-remainder method (Hamilton's apportionment), ties to the earlier category.
+ */
+export function balancedAllocation(probabilities: readonly number[], units: number): Int32Array {
+  const exact = probabilities.map((p) => p * units);
+  const counts = exact.map(Math.floor);
+  let left = units - counts.reduce((a, b) => a + b, 0);
+  const order = exact.map((e, j) => ({ j, r: e - Math.floor(e) })).sort((a, b) => b.r - a.r || a.j - b.j);
+  for (let i = 0; left > 0; i++, left--) counts[order[i % order.length].j]++;
+  const codes = new Int32Array(units);
+  let at = 0;
+  counts.forEach((c, j) => { for (let i = 0; i < c; i++) codes[at++] = j; });
+  return codes;
 }
 
 export interface CompiledRandom {
@@ -98,7 +116,8 @@ export function compilePlan(design: SurveyDesign): SimulationPlan {
         cumulative[j] = acc;
       });
       cumulative[cumulative.length - 1] = 1; // guard against rounding so every draw lands in a category
-      return new CompiledCovariate(c.name, KIND_CATEGORICAL, varies, 0, 0, -1, 0, 1, new Int32Array(0), cumulative, c.levels, slot, new Float64Array(ownLevels), new Float64Array(0));
+      const balanced = c.allocation === 'balanced' && ownLevels > 0 ? balancedAllocation(c.probabilities, ownLevels) : null;
+      return new CompiledCovariate(c.name, KIND_CATEGORICAL, varies, 0, 0, -1, 0, 1, new Int32Array(0), cumulative, c.levels, slot, new Float64Array(ownLevels), new Float64Array(0), balanced);
     }
     slot = numericCount++;
     numericSlot.set(c.name, slot);

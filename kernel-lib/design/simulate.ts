@@ -209,6 +209,16 @@ function drawLevelValues(ws: SimulationWorkspace, stream: Stream): void {
     if (c.confFactor >= 0) for (let g = 0; g < c.shift.length; g++) c.shift[g] = stream.normal();
     if (c.variesFactor < 0) continue;
     const lv = c.levelValue;
+    if (c.balancedCodes) {
+      // balanced allocation: a uniformly random permutation of the fixed category counts (Fisher-Yates; Knuth, TAOCP vol. 2, §3.4.2, algorithm P)
+      const codes = c.balancedCodes;
+      for (let g = 0; g < lv.length; g++) lv[g] = codes[g];
+      for (let g = lv.length - 1; g > 0; g--) {
+        const h = stream.int(g + 1);
+        const t = lv[g]; lv[g] = lv[h]; lv[h] = t;
+      }
+      continue;
+    }
     for (let g = 0; g < lv.length; g++) lv[g] = drawCovariate(c, stream, c.confFactor >= 0 ? c.confOfLevel[g] : 0);
   }
 }

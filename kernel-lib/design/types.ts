@@ -50,6 +50,12 @@ export interface CovariateSpec {
   categories?: Record<string, number>;
   /** Only with `normal`. */
   confounding?: ConfoundingSpec;
+  /**
+   * Only with `categories`: "random" draws each unit's category independently; "balanced" gives
+   * the categories to exactly round(probability × units) units (largest remainders), shuffled anew in
+   * each replicate — as a survey that picks 3 grazed and 3 ungrazed sites. Default "random".
+   */
+  allocation?: 'random' | 'balanced';
 }
 
 /**
@@ -125,7 +131,7 @@ export interface ResolvedFactor {
 export type ResolvedCovariate =
   | { kind: 'normal'; name: string; varies: string; mean: number; sd: number; confounding?: ConfoundingSpec }
   | { kind: 'uniform'; name: string; varies: string; min: number; max: number }
-  | { kind: 'categorical'; name: string; varies: string; levels: string[]; probabilities: number[] };
+  | { kind: 'categorical'; name: string; varies: string; levels: string[]; probabilities: number[]; allocation: 'random' | 'balanced' };
 
 /** One factor of a truth term: a numeric column, or the indicator of one level of a text column. */
 export type TruthPart = { kind: 'numeric'; column: string } | { kind: 'level'; column: string; level: string };

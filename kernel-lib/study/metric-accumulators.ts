@@ -19,6 +19,12 @@ export class ParameterAccumulator {
   missingInterval = 0;
 
   readonly estimate = new RunningMoments();
+  /** estimate − truth per row (the truth may vary per replicate). */
+  readonly error = new RunningMoments();
+  /** Truth per usable row. */
+  readonly truths = new RunningMoments();
+  /** Whether rows of this group carry different truths (realised-effect targets). */
+  truthVaries = false;
   /** Squared error (estimate - truth)^2, whose mean is the MSE. */
   readonly squaredError = new RunningMoments();
   /** se^2 over rows with finite estimate and se. */
@@ -52,12 +58,12 @@ export class ParameterAccumulator {
           `${this.describe()} has '${this.kind}'; expected one kind per parameter`,
       );
     }
-    if (row.truth !== this.truth) {
-      throw new Error(
-        `replicate row ${index}: field 'truth' is ${row.truth} but row ${this.firstRow} of ` +
-          `${this.describe()} has ${this.truth}; expected one true value per scenario and parameter`,
-      );
+    if (!Number.isFinite(row.truth)) {
+      throw new Error(`replicate row ${index}: field 'truth' must be a finite number, got ${row.truth} (${this.describe()})`);
     }
+    // A coefficient of a random factor entered as fixed estimates this replicate's realised effects,
+    // so its target moves from replicate to replicate: errors are then taken against each row's truth.
+    if (row.truth !== this.truth) this.truthVaries = true;
     this.rows++;
     if (isUnusableStatus(row.status)) {
       this.unusable++;
@@ -69,7 +75,10 @@ export class ParameterAccumulator {
       return;
     }
     this.estimate.add(est);
-    const err = est - this.truth;
+    const truth = row.truth;
+    this.truths.add(truth);
+    const err = est - truth;
+    this.error.add(err);
     this.squaredError.add(err * err);
     if (this.kind === 'sd') this.pushValue(est);
 
@@ -85,7 +94,7 @@ export class ParameterAccumulator {
     const hi = row.upper;
     if (Number.isFinite(lo) && Number.isFinite(hi)) {
       this.width.add(hi - lo);
-      if (lo <= this.truth && this.truth <= hi) this.covered++;
+      if (lo <= truth && truth <= hi) this.covered++;
       if (lo > 0 || hi < 0) this.excludesZero++;
     } else {
       this.missingInterval++;

@@ -225,9 +225,13 @@ function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level
   const isSd = p.kind === 'sd';
 
   // Bias and its MCSE sqrt(sum (est_i - mean)^2 / (n(n-1))) = EmpSE/sqrt(n): Morris et al. 2019, Table 6.
-  const empSE = Math.sqrt(p.estimate.variance());
-  const meanMcse = p.estimate.standardErrorOfMean();
-  const bias = p.estimate.mean - p.truth;
+  // With a per-replicate target (realised effects) the spread that matters is that of the error.
+  const spread = p.truthVaries ? p.error : p.estimate;
+  const empSE = Math.sqrt(spread.variance());
+  const meanMcse = spread.standardErrorOfMean();
+  const bias = p.error.mean;
+  const truth = p.truthVaries ? p.truths.mean : p.truth;
+  const variesNote = p.truthVaries ? 'target varies by replicate (realised effects): bias, EmpSE and coverage use each replicate\'s truth' : undefined;
   push(out, base, isSd ? 'sdMean' : 'mean', p.estimate.mean, meanMcse, n, estNote);
 
   if (isSd) {
@@ -239,11 +243,11 @@ function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level
     push(out, base, 'sdMedian', medianOfSorted(sorted), median.se, n, joinNotes(excluded, fewNote, tiedNote));
   }
 
-  const truthZeroNote = p.truth === 0 ? 'truth is 0: relativeBias omitted' : undefined;
-  push(out, base, 'bias', bias, meanMcse, n, joinNotes(estNote, truthZeroNote));
-  if (p.truth !== 0) {
+  const truthZeroNote = truth === 0 ? 'truth is 0: relativeBias omitted' : undefined;
+  push(out, base, 'bias', bias, meanMcse, n, joinNotes(estNote, truthZeroNote, variesNote));
+  if (truth !== 0 && !p.truthVaries) {
     // Relative bias (Morris et al. 2019, §5.2): bias and its MCSE both divided by |truth|.
-    push(out, base, 'relativeBias', bias / p.truth, meanMcse / Math.abs(p.truth), n, estNote);
+    push(out, base, 'relativeBias', bias / truth, meanMcse / Math.abs(truth), n, estNote);
   }
 
   // EmpSE and its MCSE EmpSE/sqrt(2(n-1)): Morris et al. 2019, Table 6.
@@ -280,7 +284,7 @@ function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level
     if (!isSd) {
       // Rejection rate (interval excludes 0), binomial MCSE: Morris et al. 2019, Table 6, power.
       const rej =
-        p.truth === 0
+        truth === 0 && !p.truthVaries
           ? proportionRow(base, 'typeIError', p.excludesZero, k, alpha)
           : proportionRow(base, 'power', p.excludesZero, k);
       rej.note = joinNotes(excluded, intervalNote, rej.note);

@@ -1,13 +1,6 @@
-import type { SimulatedData } from '../design/simulate';
-import type { ResolvedVariant } from '../design/types';
-
 /**
- * Per-replicate targets of coefficients that estimate realised random effects (a factor with
- * random truth entered as fixed). Until the design layer provides them, none: such coefficients
- * are compared with the design truth.
+ * Per-replicate targets of coefficients that estimate realised random effects: when a factor
+ * with random truth enters a variant as fixed, its level coefficients (and the intercept) estimate
+ * the realised effects of this data set, not the population values.
  */
-export function realisedTruthOf(variant: ResolvedVariant, data: SimulatedData): Record<string, number> {
-  void variant;
-  void data;
-  return {};
-}
+export { realisedTruth as realisedTruthOf } from '../design/realised-truth';

@@ -61,6 +61,11 @@ export class ProfiledDeviance {
   private design: DesignMatrices;
   /** The last evaluation failed a factorisation (reported, not thrown). */
   lastFailure = '';
+  /** Every term has one column (random intercepts only): Λ is diagonal. */
+  private readonly allScalar: boolean;
+  /** For rows of the dense block: θ index of the term each row belongs to. */
+  private readonly rowTheta2: Int32Array;
+  private readonly lambda2: Float64Array;
 
   constructor(design: DesignMatrices, reml: boolean) {
     this.design = design;
@@ -110,6 +115,13 @@ export class ProfiledDeviance {
     this.m = new Float64Array(w * w);
     this.block = new Float64Array(Math.max(1, k1 * k1));
     this.tmpRow = new Float64Array(Math.max(1, q1));
+    this.allScalar = this.terms.every((t) => t.k === 1);
+    this.rowTheta2 = new Int32Array(this.q2);
+    for (let s = 1; s < this.terms.length; s++) {
+      const t = this.terms[s];
+      for (let r = t.start - this.q1; r < t.start - this.q1 + t.m * t.k; r++) this.rowTheta2[r] = t.thetaStart;
+    }
+    this.lambda2 = new Float64Array(this.q2);
     this.buildDesignProducts();
     this.buildResponseProducts();
   }
@@ -325,6 +337,7 @@ export class ProfiledDeviance {
     const { q1, q2, k1, m1, w, terms } = this;
     const nTerms = terms.length;
     if (nTerms === 1 && k1 === 1) return this.factorSingleIntercept(theta[0]);
+    if (this.allScalar) return this.factorScalarTerms(theta);
     if (nTerms) {
       // L11: per level, T1ᵀ G T1 + I
       const T1 = this.templates[0];
@@ -447,6 +460,66 @@ export class ProfiledDeviance {
         const ra = r[row + a];
         const ma = a * w;
         for (let b = 0; b <= a; b++) M[ma + b] -= ra * r[row + b];
+      }
+    }
+    const bad = choleskyInPlace(M, w);
+    if (bad >= 0) {
+      this.lastFailure = bad === w - 1 ? 'the model fits the response exactly (zero residual variance)' : 'fixed-effect block not positive definite';
+      return false;
+    }
+    this.lastFailure = '';
+    return true;
+  }
+
+  /**
+   * Random intercepts only (every template is a scalar θₛ, so Λ is diagonal): the general block
+   * factorisation written out with k = 1, without per-level calls. Same layout of L11, L21, L22, R.
+   */
+  private factorScalarTerms(theta: ArrayLike<number>): boolean {
+    const { q1, q2, w } = this;
+    const g1 = this.g1, z2z1 = this.z2z1, z2z2 = this.z2z2, zxy = this.zxy, xyxy = this.xyxy;
+    const l11 = this.l11, l21 = this.l21, l22 = this.l22, r = this.r, M = this.m;
+    const lam2 = this.lambda2;
+    const lam1 = theta[0];
+    for (let a = 0; a < q2; a++) lam2[a] = theta[this.rowTheta2[a]];
+    for (let l = 0; l < q1; l++) {
+      const ll = Math.sqrt(lam1 * lam1 * g1[l] + 1);
+      l11[l] = ll;
+      const f = lam1 / ll;
+      const row = l * w;
+      for (let c = 0; c < w; c++) r[row + c] = f * zxy[row + c];
+    }
+    for (let a = 0; a < q2; a++) {
+      const ra = a * q1;
+      const fa = lam2[a] * lam1;
+      for (let l = 0; l < q1; l++) l21[ra + l] = (fa * z2z1[ra + l]) / l11[l];
+    }
+    for (let a = 0; a < q2; a++) {
+      const ra = a * q1;
+      for (let b = 0; b <= a; b++) {
+        const rb = b * q1;
+        let sum = lam2[a] * lam2[b] * z2z2[a * q2 + b];
+        for (let l = 0; l < q1; l++) sum -= l21[ra + l] * l21[rb + l];
+        l22[a * q2 + b] = a === b ? sum + 1 : sum;
+      }
+    }
+    if (choleskyInPlace(l22, q2) >= 0) { this.lastFailure = 'random-effects block not positive definite'; return false; }
+    for (let a = 0; a < q2; a++) {
+      const ra = a * q1;
+      const rowA = (q1 + a) * w;
+      for (let c = 0; c < w; c++) {
+        let sum = lam2[a] * zxy[rowA + c];
+        for (let l = 0; l < q1; l++) sum -= l21[ra + l] * r[l * w + c];
+        for (let b = 0; b < a; b++) sum -= l22[a * q2 + b] * r[(q1 + b) * w + c];
+        r[rowA + c] = sum / l22[a * q2 + a];
+      }
+    }
+    const q = this.q;
+    for (let a = 0; a < w; a++) {
+      for (let b = 0; b <= a; b++) {
+        let sum = xyxy[a * w + b];
+        for (let c = 0; c < q; c++) sum -= r[c * w + a] * r[c * w + b];
+        M[a * w + b] = sum;
       }
     }
     const bad = choleskyInPlace(M, w);

@@ -32,8 +32,8 @@ export function nelderMeadBounded(
 ): MinimiseResult {
   const d = start.length;
   const step = options.step ?? 0.25;
-  const fTol = options.fTolerance ?? 1e-10;
-  const xTol = options.xTolerance ?? 1e-7;
+  const fTol = options.fTolerance ?? 1e-8;
+  const xTol = options.xTolerance ?? 1e-5;
   const maxEval = options.maxEvaluations ?? 400 * d * d;
   const pts: Float64Array[] = [];
   const vals = new Float64Array(d + 1);

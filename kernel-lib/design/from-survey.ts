@@ -1,0 +1,167 @@
+import { describeSurvey, type SurveySummary } from '../data/describe-survey';
+import { toColumns, type Columns } from '../data/columns';
+import { isMissing } from '../data/missing';
+import { fitModel, type SurveyData } from '../fit/fit-model';
+import type { FitResult } from '../fit/result';
+import { parseModel } from '../model/parse';
+import { termColumns } from '../model/terms';
+import type { ModelSpec, ResolvedModel } from '../model/types';
+import type { CovariateSpec, FactorSpec, SurveyDesignSpec, VariantSpec } from './types';
+
+export interface DesignFromSurveyOptions {
+  seed?: number | string;
+  /** Default 1000. */
+  replicates?: number;
+}
+
+export interface DerivedDesign {
+  design: SurveyDesignSpec;
+  /** The pilot fit whose estimates became the truth. */
+  fit: FitResult;
+  summary: SurveySummary;
+  /** What was assumed or left out, in plain words. */
+  notes: string[];
+}
+
+function mean(values: number[]): number {
+  return values.reduce((a, b) => a + b, 0) / values.length;
+}
+
+function sd(values: number[]): number {
+  const m = mean(values);
+  return Math.sqrt(values.reduce((a, b) => a + (b - m) ** 2, 0) / Math.max(1, values.length - 1));
+}
+
+/** The grouping factor whose levels a column is constant within (the one with fewest levels), if any. */
+function constantWithin(data: Columns, column: string, factors: string[]): string | null {
+  let best: { factor: string; levels: number } | null = null;
+  for (const f of factors) {
+    const seen = new Map<string, string>();
+    let constant = true;
+    const col = data[column];
+    const g = data[f];
+    for (let i = 0; i < col.length && constant; i++) {
+      if (isMissing(col[i]) || isMissing(g[i])) continue;
+      const key = String(g[i]);
+      const v = String(col[i]);
+      const prev = seen.get(key);
+      if (prev === undefined) seen.set(key, v);
+      else if (prev !== v) constant = false;
+    }
+    if (constant && seen.size > 1 && (!best || seen.size < best.levels)) best = { factor: f, levels: seen.size };
+  }
+  return best?.factor ?? null;
+}
+
+/**
+ * A survey design that looks like a pilot survey: its factors, their levels and nesting, the
+ * observations per cell, the share of missing rows, covariates with the pilot's distributions, and as
+ * truth the estimates of `model` fitted to the pilot data. Variants: the model as given, and one
+ * with each random factor switched to fixed. The estimates are plausible values, not facts: vary
+ * them in the design's grid.
+ */
+export function designFromSurvey(data: SurveyData, model: ModelSpec | ResolvedModel, options: DesignFromSurveyOptions = {}): DerivedDesign {
+  const resolved = parseModel(model);
+  const columns = toColumns(data as Columns);
+  const groupNames = resolved.groups.map((g) => g.factor);
+  const nesting: Record<string, string> = {};
+  for (const g of resolved.groups) if (g.within) nesting[g.factor] = g.within;
+  const summary = describeSurvey(columns, groupNames, resolved.response, nesting);
+  const fit = fitModel(columns, resolved);
+  const notes: string[] = [];
+
+  const factors: FactorSpec[] = resolved.groups.map((g) => {
+    const s = summary.factors.find((f) => f.factor === g.factor)!;
+    if (g.within) {
+      const outer = summary.factors.find((f) => f.factor === g.within);
+      const per = outer ? Math.max(1, Math.round(s.levels / outer.levels)) : s.levels;
+      return { name: g.factor, levels: per, within: g.within };
+    }
+    return { name: g.factor, levels: s.levels };
+  });
+  // nested factors given with labels repeated under each outer level: count levels per outer level
+  for (const f of factors) {
+    if (!f.within) continue;
+    const inner = columns[f.name];
+    const outer = columns[f.within];
+    const perOuter = new Map<string, Set<string>>();
+    for (let i = 0; i < inner.length; i++) {
+      if (isMissing(inner[i]) || isMissing(outer[i])) continue;
+      const o = String(outer[i]);
+      if (!perOuter.has(o)) perOuter.set(o, new Set());
+      perOuter.get(o)!.add(String(inner[i]));
+    }
+    const sizes = [...perOuter.values()].map((s) => s.size);
+    f.levels = Math.max(1, Math.round(mean(sizes)));
+  }
+  const cells = factors.reduce((prod, f) => prod * f.levels, 1);
+  const perCell = Math.max(1, Math.round((summary.perCellMin + summary.perCellMax) / 2));
+  const usedRows = fit.observations;
+  const missing = Math.max(0, Math.min(0.9, 1 - usedRows / (cells * perCell)));
+  if (!summary.balanced) notes.push(`the pilot is unbalanced (${summary.perCellMin} to ${summary.perCellMax} rows per cell); the design uses ${perCell} per cell and ${(missing * 100).toFixed(1)}% missing at random`);
+
+  const fixedColumns = [...new Set(resolved.fixed.flatMap((t) => termColumns(t)))];
+  const covariates: CovariateSpec[] = [];
+  for (const c of fixedColumns) {
+    const values = Array.from(columns[c]).filter((v) => !isMissing(v));
+    const varies = constantWithin(columns, c, groupNames) ?? 'observation';
+    const numeric = values.every((v) => typeof v === 'number') && !resolved.categorical.includes(c);
+    if (numeric) {
+      const nums = values as number[];
+      covariates.push({ name: c, varies, normal: { mean: Number(mean(nums).toPrecision(4)), sd: Number(sd(nums).toPrecision(4)) } });
+    } else {
+      const counts = new Map<string, number>();
+      for (const v of values) counts.set(String(v), (counts.get(String(v)) ?? 0) + 1);
+      const categories: Record<string, number> = {};
+      for (const [k, v] of [...counts.entries()].sort()) categories[k] = Number((v / values.length).toFixed(4));
+      const total = Object.values(categories).reduce((a, b) => a + b, 0);
+      const firstKey = Object.keys(categories)[0];
+      categories[firstKey] = Number((categories[firstKey] + 1 - total).toFixed(4));
+      covariates.push({ name: c, varies, categories, ...(varies !== 'observation' ? { allocation: 'balanced' as const } : {}) });
+    }
+  }
+
+  const fixedTruth: Record<string, number> = {};
+  const fixedGroupPrefixes = resolved.groups.filter((g) => g.as === 'fixed').map((g) => `${g.factor}[`);
+  for (const r of fit.fixed) {
+    if (r.aliased || fixedGroupPrefixes.some((p) => r.term.startsWith(p) || r.term.includes(`:${p}`))) continue;
+    fixedTruth[r.term] = Number(r.estimate.toPrecision(4));
+  }
+  if (fixedGroupPrefixes.length) notes.push('factors fitted as fixed in the pilot get no random variation in the design (their level effects cannot carry over to new labels)');
+  const sdTruth: Record<string, number> = {};
+  const slopes: Record<string, Record<string, number>> = {};
+  for (const r of fit.random) {
+    const value = Number(r.sd.toPrecision(4));
+    if (r.factor === 'residual') sdTruth.residual = value;
+    else if (r.term === 'intercept') sdTruth[r.factor] = value;
+    else (slopes[r.factor] ??= {})[r.term] = value;
+  }
+  const correlations: Record<string, Record<string, number>> = {};
+  for (const c of fit.correlations) {
+    if (Number.isFinite(c.value)) (correlations[c.factor] ??= {})[`${c.terms[0]}:${c.terms[1]}`] = Number(c.value.toFixed(3));
+  }
+  if (fit.singular) notes.push('the pilot fit is singular: a variance is estimated at zero; consider a grid over plausible non-zero values');
+
+  const asModel = (m: ResolvedModel): ModelSpec => ({ response: m.response, fixed: m.fixed, groups: m.groups, estimation: m.estimation, ...(m.categorical.length ? { categorical: m.categorical } : {}) });
+  const variants: VariantSpec[] = [{ name: 'as in the pilot model', model: asModel(resolved) }];
+  for (const g of resolved.groups) {
+    if (g.as !== 'random') continue;
+    variants.push({
+      name: `${g.factor} fixed`,
+      model: asModel({ ...resolved, groups: resolved.groups.map((h) => (h === g ? { ...h, as: 'fixed' as const, slopes: h.slopes } : h)) }),
+    });
+  }
+  const design: SurveyDesignSpec = {
+    seed: options.seed ?? 1, replicates: options.replicates ?? 1000, response: resolved.response, factors, perCell,
+    ...(missing > 0 ? { missing: Number(missing.toFixed(3)) } : {}),
+    covariates,
+    truth: {
+      fixed: fixedTruth, sd: sdTruth,
+      ...(Object.keys(slopes).length ? { slopes } : {}),
+      ...(Object.keys(correlations).length ? { correlations } : {}),
+    },
+    variants,
+  };
+  notes.push('truth values are the pilot estimates: plausible values for planning, not facts');
+  return { design, fit, summary, notes };
+}

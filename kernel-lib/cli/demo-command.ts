@@ -1,24 +1,37 @@
-import { join } from 'node:path';
-import { readFileSync } from 'node:fs';
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { join, relative } from 'node:path';
 import { parseArgs } from 'node:util';
-import { readCsvFile } from '../data/csv';
-import { fitModel } from '../fit/fit-model';
-import { formatComparison } from './compare-fits';
+import { readFileSync } from 'node:fs';
+import { readStudyFolder, studyReportHtml } from '../display/study-report';
+import { formatMetricsTable } from './metrics-table';
+import { runStudyWithProgress } from './study-command';
 
 /** Project root: dist/cli/ or kernel-lib/cli/ are two levels below it. */
 export const PROJECT_ROOT = join(__dirname, '..', '..');
 
-/** `quadrat demo`: fit the invented demo survey with year as random and as fixed, side by side. */
-export function demoCommand(argv: string[], print: (s: string) => void): number {
-  parseArgs({ args: argv, options: { out: { type: 'string' } }, strict: true });
-  const dataFile = join(PROJECT_ROOT, 'data', 'demo-survey.csv');
-  const data = readCsvFile(dataFile);
-  const models = [
-    { name: 'year random', file: join(PROJECT_ROOT, 'data', 'demo-model.json') },
-    { name: 'year fixed', file: join(PROJECT_ROOT, 'data', 'demo-model-year-fixed.json') },
-  ];
-  const fits = models.map((m) => ({ name: m.name, fit: fitModel(data, JSON.parse(readFileSync(m.file, 'utf8'))) }));
-  print(`Demo: the invented survey in data/demo-survey.csv fitted two ways\n`);
-  print(formatComparison(fits));
+/**
+ * `quadrat demo`: the bundled study of the invented Larkspur Fen survey (year random vs year
+ * fixed with 3 to 8 survey years): metrics table on the terminal, HTML summary in a folder.
+ */
+export async function demoCommand(argv: string[], print: (s: string) => void): Promise<number> {
+  const { values } = parseArgs({ args: argv, options: { out: { type: 'string' }, workers: { type: 'string' } }, strict: true });
+  const out = values.out ?? join(PROJECT_ROOT, 'out', 'demo-study');
+  mkdirSync(out, { recursive: true });
+  const design = JSON.parse(readFileSync(join(PROJECT_ROOT, 'data', 'demo-study.json'), 'utf8'));
+  print('Demo study of an invented survey (data/demo-study.json): tussock-sedge height at the fictional Larkspur Fen,');
+  print('6 sites × 3 plots, 2 visits a year; is "year" better random or fixed with 3, 4, 6 or 8 survey years?\n');
+  const result = await runStudyWithProgress(design, { out, workers: values.workers ? Number(values.workers) : undefined }, print);
+  if (result.interrupted || !result.metrics) {
+    print(`interrupted; run the same command again to resume (results so far in ${out})`);
+    return 130;
+  }
+  print(`\n${result.batchesRun ? `simulated and fitted in ${result.seconds.toFixed(1)} s` : 'results already on disk'}\n`);
+  const key = result.metrics.filter((m) => m.parameter === 'grazing[ungrazed]' || m.parameter === 'sd(site)' || m.parameter === 'sd(year)');
+  print(formatMetricsTable(key, ['coverage', 'bias', 'rmse', 'width', 'power', 'sdMean', 'sdMedian']));
+  const report = join(out, 'report.html');
+  writeFileSync(report, await studyReportHtml(readStudyFolder(out), 'Demo study: year random or fixed? (invented survey)'));
+  print(`\nAll metrics: ${relative(process.cwd(), join(out, 'metrics.csv')) || out}; per-replicate results: replicates.csv`);
+  print(`HTML summary with charts: ${relative(process.cwd(), report)}`);
+  print('Results hold only for the simulated assumptions; defer to a qualified statistician and local survey protocols.');
   return 0;
 }

@@ -1,4 +1,5 @@
-import { existsSync, readFileSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { readStudyFolder, studyReportHtml } from '../display/study-report';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { QuadratInputError } from '../model/errors';
@@ -13,6 +14,7 @@ export const STUDY_USAGE = [
   'quadrat study run <design.json> --out <folder> [--replicates R] [--workers W] [--shard i/N]',
   'quadrat study summary <folder> [--json]',
   'quadrat study merge <folder>... --out <folder>',
+  'quadrat study report <folder> [--out <file.html>]',
 ].join('\n  ');
 
 function intOption(value: string | undefined, name: string, min: number): number | undefined {
@@ -101,5 +103,14 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
     print(formatMetricsTable(metrics));
     return 0;
   }
-  throw new QuadratInputError(`study: expected "run", "summary" or "merge"; usage:\n  ${STUDY_USAGE}`, { field: 'study' });
+  if (sub === 'report') {
+    const { values, positionals } = parseArgs({ args: rest, allowPositionals: true, strict: true, options: { out: { type: 'string' }, title: { type: 'string' } } });
+    if (positionals.length !== 1) throw new QuadratInputError('study report: expected one study folder', { field: 'folder' });
+    if (!existsSync(join(positionals[0], 'metrics.json'))) throw new QuadratInputError(`study report: no metrics in "${positionals[0]}" (the study is not complete)`, { field: 'folder' });
+    const file = values.out ?? join(positionals[0], 'report.html');
+    writeFileSync(file, await studyReportHtml(readStudyFolder(positionals[0]), values.title ?? 'Simulation study'));
+    print(`report written to ${file}`);
+    return 0;
+  }
+  throw new QuadratInputError(`study: expected "run", "summary", "merge" or "report"; usage:\n  ${STUDY_USAGE}`, { field: 'study' });
 }

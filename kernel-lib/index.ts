@@ -1,0 +1,52 @@
+// Quadrat's public API: what notebooks, scripts and the command line use.
+// Import it in notebook cells as `./kernel-lib/index` (the kernel resolves files, not folders).
+
+// Model description
+export type { ModelSpec, ResolvedModel, GroupSpec, FixedTerm, GroupRole, Estimation } from './model/types';
+export { parseModel, modelToJson } from './model/parse';
+export { QuadratInputError } from './model/errors';
+
+// Survey data
+export { readCsvFile, parseCsv } from './data/csv';
+export { toColumns, columnsFromRecords, columnsFromTable } from './data/columns';
+export type { Columns, TableLike } from './data/columns';
+export { buildDesign } from './data/build-design';
+export { describeSurvey } from './data/describe-survey';
+export type { SurveySummary, FactorSummary, FactorPairSummary } from './data/describe-survey';
+
+// Fitting
+export { fitModel, aliasPriority } from './fit/fit-model';
+export type { SurveyData } from './fit/fit-model';
+export { fitDesign, INTERVAL_METHODS } from './fit/fit-design';
+export type { FitOptions, IntervalMethod } from './fit/fit-design';
+export type { FitResult, FixedEffectRow, VarianceComponentRow, CorrelationRow, ConditionalModeRow } from './fit/result';
+export type { DesignMatrices, RandomTerm } from './fit/design';
+
+// Survey designs and simulation
+export { parseDesign } from './design/parse';
+export { expandGrid } from './design/grid';
+export type { Scenario } from './design/grid';
+export { simulateColumns } from './design/simulate';
+export { designFromSurvey } from './design/from-survey';
+export type { SurveyDesign, SurveyDesignSpec } from './design/types';
+export { createStream } from './random/stream';
+export type { Stream } from './random/stream';
+
+// Studies
+export { runStudy, DEFAULT_BATCH_SIZE } from './study/run-study';
+export type { RunStudyOptions, RunStudyResult, StudyProgress } from './study/run-study';
+export { ReplicateRunner } from './study/replicate-runner';
+export { summarise } from './study/metrics';
+export type { MetricRow } from './study/metrics';
+export { formatMetric } from './study/format-metric';
+export { toWideTable } from './study/wide-table';
+export type { ReplicateRow } from './study/replicate-row';
+export { mergeShards } from './study/merge-shards';
+export { withScenarioFields, gridFields, scenarioFieldName } from './study/scenario-fields';
+export { readCoverage } from './study/reading';
+
+// Plots (rows in, Vega-Lite spec out) and display
+export * from './plots/index';
+export * from './display/index';
+export { readStudyFolder, studyReportHtml, studyChartSections } from './display/study-report';
+export type { StudyResults } from './display/study-report';

@@ -42,7 +42,42 @@ function timeStatsmodels(file, kind, repeats) {
   }
 }
 
-function main() {
+/** Study benchmark: simulate and fit both ways, with 1 and 2 workers, and the demo's wall time. */
+async function studyBench() {
+  const { runStudy } = require('../dist/study/run-study');
+  const { ReplicateRunner } = require('../dist/study/replicate-runner');
+  const { parseDesign } = require('../dist/design/parse');
+  const { replicateRowsToCsv } = require('../dist/study/replicate-csv');
+  const design = JSON.parse(require('node:fs').readFileSync(join(__dirname, 'study-random-intercept.json'), 'utf8'));
+  const replicates = quick ? 2000 : 20000;
+  // in this thread, no I/O: simulate, fit as random, fit as fixed, tidy rows and CSV text
+  const runner = new ReplicateRunner(parseDesign(design));
+  for (let b = 0; b < 20; b++) replicateRowsToCsv(runner.runBatch(0, b * 25, b * 25 + 25));
+  let t0 = process.hrtime.bigint();
+  for (let b = 20; b < 20 + replicates / 25; b++) replicateRowsToCsv(runner.runBatch(0, b * 25, b * 25 + 25));
+  const inThread = replicates / (Number(process.hrtime.bigint() - t0) / 1e9);
+  const byWorkers = {};
+  for (const workers of [1, 2]) {
+    const out = mkdtempSync(join(tmpdir(), 'quadrat-bench-study-'));
+    t0 = process.hrtime.bigint();
+    await runStudy({ ...design, replicates }, { out, workers });
+    byWorkers[workers] = replicates / (Number(process.hrtime.bigint() - t0) / 1e9);
+  }
+  const demoOut = mkdtempSync(join(tmpdir(), 'quadrat-bench-demo-'));
+  t0 = process.hrtime.bigint();
+  execFileSync(process.execPath, [join(__dirname, '..', 'bin', 'quadrat.js'), 'demo', '--out', demoOut], { stdio: 'ignore' });
+  const demoSeconds = Number(process.hrtime.bigint() - t0) / 1e9;
+  return {
+    case: 'study: random intercept (8 sites x 6), simulate + fit random + fit fixed',
+    replicatesPerSecondInThread: Math.round(inThread),
+    replicatesPerSecondOneWorker: Math.round(byWorkers[1]),
+    replicatesPerSecondTwoWorkers: Math.round(byWorkers[2]),
+    scaling: Number((byWorkers[2] / byWorkers[1]).toFixed(2)),
+    demoWallSeconds: Number(demoSeconds.toFixed(2)),
+  };
+}
+
+async function main() {
   const dir = mkdtempSync(join(tmpdir(), 'quadrat-bench-'));
   const rows = [];
   for (const c of engineCases()) {
@@ -72,8 +107,9 @@ function main() {
       referenceError: ref.error,
     });
   }
+  const study = args.includes('--engine-only') ? null : await studyBench();
   if (asJson) {
-    process.stdout.write(JSON.stringify(rows, null, 2) + '\n');
+    process.stdout.write(JSON.stringify(study ? [...rows, study] : rows, null, 2) + '\n');
     return;
   }
   console.log('Engine benchmark: one REML fit per call, same data for Quadrat and statsmodels MixedLM (lbfgs), one core');
@@ -83,6 +119,12 @@ function main() {
       String(r.referenceFitsPerSecond ?? 'n/a').padStart(19), String(r.ratio ?? 'n/a').padStart(7), String(r.maxFixedDifferenceInSE ?? 'n/a').padStart(12));
     if (r.referenceError) console.log(`  (statsmodels not measured: ${r.referenceError})`);
   }
+  if (study) {
+    console.log('');
+    console.log(`Study benchmark (${study.case}):`);
+    console.log(`  replicates per second: ${study.replicatesPerSecondInThread} in one thread without I/O, ${study.replicatesPerSecondOneWorker} with 1 worker, ${study.replicatesPerSecondTwoWorkers} with 2 workers (scaling ${study.scaling}x)`);
+    console.log(`  demo study (npm start: 4 scenarios x 1000 replicates x 2 variants) wall time: ${study.demoWallSeconds} s including start-up`);
+  }
 }
 
-main();
+main().catch((e) => { console.error(e); process.exitCode = 1; });

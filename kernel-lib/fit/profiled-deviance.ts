@@ -1,5 +1,6 @@
 import type { DesignMatrices, RandomTerm } from './design';
 import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace } from '../numeric/dense';
+import { Float64Arena } from '../numeric/arena';
 
 /**
  * Profiled REML/ML deviance of a linear mixed model through penalised least squares
@@ -92,7 +93,12 @@ export class ProfiledDeviance {
     this.m1 = this.terms.length ? this.terms[0].m : 0;
     this.q1 = this.k1 * this.m1;
     this.q2 = this.q - this.q1;
-    this.lowerBounds = new Float64Array(this.thetaLength);
+    const { q1: Q1, q2: Q2, k1: K1, m1: M1, q: Q, w: W } = this;
+    const templateSize = this.terms.reduce((a, t) => a + t.k * t.k, 0);
+    const arena = new Float64Arena(
+      this.thetaLength + 2 * M1 * K1 * K1 + 2 * Q2 * Q1 + 2 * Q2 * Q2 + 2 * Q * W + 2 * W * W + templateSize + Math.max(1, K1 * K1) + Math.max(1, Q1) + Q2,
+    );
+    this.lowerBounds = arena.take(this.thetaLength);
     for (const t of this.terms) {
       let idx = t.thetaStart;
       if (t.term.correlated) {
@@ -102,26 +108,26 @@ export class ProfiledDeviance {
       }
     }
     const { q1, q2, k1, m1, q, w } = this;
-    this.g1 = new Float64Array(m1 * k1 * k1);
-    this.z2z1 = new Float64Array(q2 * q1);
-    this.z2z2 = new Float64Array(q2 * q2);
-    this.zxy = new Float64Array(q * w);
-    this.xyxy = new Float64Array(w * w);
-    this.templates = this.terms.map((t) => new Float64Array(t.k * t.k));
-    this.l11 = new Float64Array(m1 * k1 * k1);
-    this.l21 = new Float64Array(q2 * q1);
-    this.l22 = new Float64Array(q2 * q2);
-    this.r = new Float64Array(q * w);
-    this.m = new Float64Array(w * w);
-    this.block = new Float64Array(Math.max(1, k1 * k1));
-    this.tmpRow = new Float64Array(Math.max(1, q1));
+    this.g1 = arena.take(m1 * k1 * k1);
+    this.z2z1 = arena.take(q2 * q1);
+    this.z2z2 = arena.take(q2 * q2);
+    this.zxy = arena.take(q * w);
+    this.xyxy = arena.take(w * w);
+    this.templates = this.terms.map((t) => arena.take(t.k * t.k));
+    this.l11 = arena.take(m1 * k1 * k1);
+    this.l21 = arena.take(q2 * q1);
+    this.l22 = arena.take(q2 * q2);
+    this.r = arena.take(q * w);
+    this.m = arena.take(w * w);
+    this.block = arena.take(Math.max(1, k1 * k1));
+    this.tmpRow = arena.take(Math.max(1, q1));
     this.allScalar = this.terms.every((t) => t.k === 1);
     this.rowTheta2 = new Int32Array(this.q2);
     for (let s = 1; s < this.terms.length; s++) {
       const t = this.terms[s];
       for (let r = t.start - this.q1; r < t.start - this.q1 + t.m * t.k; r++) this.rowTheta2[r] = t.thetaStart;
     }
-    this.lambda2 = new Float64Array(this.q2);
+    this.lambda2 = arena.take(this.q2);
     this.buildDesignProducts();
     this.buildResponseProducts();
   }

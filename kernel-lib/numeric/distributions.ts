@@ -1,4 +1,4 @@
-import { erfc, incompleteBeta, logGamma } from './special';
+import { erfc, incompleteBeta, logGamma, regularizedGamma } from './special';
 
 /** Standard normal CDF Φ(x) = erfc(-x/√2)/2. */
 export function normalCdf(x: number): number {
@@ -86,4 +86,76 @@ export function studentTQuantile(p: number, df: number): number {
     x = next;
   }
   return x;
+}
+
+/** Chi-square CDF with k degrees of freedom: P(k/2, x/2) (Abramowitz and Stegun 1964, 26.4.19). */
+export function chiSquareCdf(x: number, k: number): number {
+  if (!(k > 0)) return NaN;
+  return regularizedGamma(k / 2, x / 2).p;
+}
+
+/** Chi-square upper tail Q(k/2, x/2), accurate for small tail areas. */
+export function chiSquareSurvival(x: number, k: number): number {
+  if (!(k > 0)) return NaN;
+  return regularizedGamma(k / 2, x / 2).q;
+}
+
+/** Chi-square quantile: bisection on the CDF (or on the upper tail above the median, for accuracy). */
+export function chiSquareQuantile(p: number, k: number): number {
+  if (!(k > 0) || !(p >= 0 && p <= 1)) return NaN;
+  if (p === 0) return 0;
+  if (p === 1) return Infinity;
+  const upper = p > 0.5;
+  const target = upper ? 1 - p : p;
+  // below the root the CDF is under p (or the tail above 1 − p)
+  const below = (x: number) => (upper ? chiSquareSurvival(x, k) > target : chiSquareCdf(x, k) < target);
+  return bisectIncreasing(below, Math.max(1, 2 * k));
+}
+
+/** F CDF with (d1, d2) degrees of freedom: I_{d1 x/(d1 x + d2)}(d1/2, d2/2) (Abramowitz and Stegun 1964, 26.6.2). */
+export function fCdf(x: number, d1: number, d2: number): number {
+  if (!(d1 > 0 && d2 > 0)) return NaN;
+  if (!(x > 0)) return 0;
+  if (x === Infinity) return 1;
+  if (d2 === Infinity) return chiSquareCdf(d1 * x, d1);
+  return incompleteBeta((d1 * x) / (d1 * x + d2), d1 / 2, d2 / 2);
+}
+
+/** F upper tail, computed as I_{d2/(d2 + d1 x)}(d2/2, d1/2) so small p-values keep their accuracy. */
+export function fSurvival(x: number, d1: number, d2: number): number {
+  if (!(d1 > 0 && d2 > 0)) return NaN;
+  if (!(x > 0)) return 1;
+  if (x === Infinity) return 0;
+  if (d2 === Infinity) return chiSquareSurvival(d1 * x, d1);
+  return incompleteBeta(d2 / (d2 + d1 * x), d2 / 2, d1 / 2);
+}
+
+/** F quantile by bisection on the CDF (upper tail above the median). */
+export function fQuantile(p: number, d1: number, d2: number): number {
+  if (!(d1 > 0 && d2 > 0) || !(p >= 0 && p <= 1)) return NaN;
+  if (p === 0) return 0;
+  if (p === 1) return Infinity;
+  const upper = p > 0.5;
+  const target = upper ? 1 - p : p;
+  const below = (x: number) => (upper ? fSurvival(x, d1, d2) > target : fCdf(x, d1, d2) < target);
+  return bisectIncreasing(below, 2);
+}
+
+/**
+ * Root of a monotone predicate on (0, ∞): `below(x)` is true left of the root. The bracket grows
+ * from `guess` by doubling, then bisection runs to a relative width of 1e-15.
+ */
+function bisectIncreasing(below: (x: number) => boolean, guess: number): number {
+  let lo = 0;
+  let hi = guess;
+  while (below(hi)) {
+    lo = hi;
+    hi *= 2;
+    if (hi > 1e300) return Infinity;
+  }
+  for (let i = 0; i < 400 && hi - lo > 1e-15 * hi; i++) {
+    const mid = 0.5 * (lo + hi);
+    if (below(mid)) lo = mid; else hi = mid;
+  }
+  return 0.5 * (lo + hi);
 }

@@ -72,3 +72,46 @@ export function incompleteBeta(x: number, a: number, b: number): number {
   }
   return (Math.exp(lnFront) * h) / a;
 }
+
+/**
+ * Regularised lower incomplete gamma P(a, x) and its complement Q(a, x) = 1 − P(a, x): the series
+ * for x < a + 1, otherwise the Legendre continued fraction by modified Lentz (Press et al.,
+ * Numerical Recipes, 3rd ed. 2007, §6.2). Each tail is computed directly, so small tails keep
+ * their relative accuracy.
+ */
+export function regularizedGamma(a: number, x: number): { p: number; q: number } {
+  if (!(a > 0) || Number.isNaN(x)) return { p: NaN, q: NaN };
+  if (x <= 0) return { p: 0, q: 1 };
+  if (x === Infinity) return { p: 1, q: 0 };
+  const lnFront = a * Math.log(x) - x - logGamma(a);
+  if (x < a + 1) {
+    let ap = a;
+    let term = 1 / a;
+    let sum = term;
+    for (let n = 0; n < 10000; n++) {
+      ap += 1;
+      term *= x / ap;
+      sum += term;
+      if (Math.abs(term) < Math.abs(sum) * 1e-17) break;
+    }
+    const p = Math.min(1, sum * Math.exp(lnFront));
+    return { p, q: 1 - p };
+  }
+  const tiny = 1e-300;
+  let b = x + 1 - a;
+  let c = 1 / tiny;
+  let d = 1 / b;
+  let h = d;
+  for (let i = 1; i < 10000; i++) {
+    const an = -i * (i - a);
+    b += 2;
+    d = an * d + b; if (Math.abs(d) < tiny) d = tiny;
+    c = b + an / c; if (Math.abs(c) < tiny) c = tiny;
+    d = 1 / d;
+    const del = d * c;
+    h *= del;
+    if (Math.abs(del - 1) < 1e-16) break;
+  }
+  const q = Math.min(1, Math.exp(lnFront) * h);
+  return { p: 1 - q, q };
+}

@@ -3,6 +3,7 @@ import type { Columns } from '../data/columns';
 import { fitDesign, INTERVAL_METHODS, type IntervalMethod } from '../fit/fit-design';
 import { aliasPriority } from '../fit/fit-model';
 import type { FitResult } from '../fit/result';
+import type { DesignMatrices } from '../fit/design';
 import { expandGrid, type Scenario } from '../design/grid';
 import { createWorkspace, simulateInto, simulationPlan, type SimulatedData } from '../design/simulate';
 import type { ResolvedVariant, SurveyDesign } from '../design/types';
@@ -26,6 +27,8 @@ export type RealisedTruthFn = (variant: ResolvedVariant, data: SimulatedData) =>
 export class ReplicateRunner {
   readonly scenarios: Scenario[];
   private readonly workspaces = new Map<number, ReturnType<typeof createWorkspace>>();
+  /** Alias priority per variant, reused while the design's column names stay the same. */
+  private readonly priorities = new Map<ResolvedVariant, { names: string[]; order: number[] }>();
 
   constructor(readonly design: SurveyDesign, private readonly realisedTruth?: RealisedTruthFn) {
     this.scenarios = expandGrid(design);
@@ -52,6 +55,15 @@ export class ReplicateRunner {
     return simulateInto(ws, createStream(this.design.seed, scenario.key, replicate));
   }
 
+  private priorityFor(variant: ResolvedVariant, design: DesignMatrices): number[] {
+    const cached = this.priorities.get(variant);
+    const names = design.fixedNames;
+    if (cached && cached.names.length === names.length && cached.names.every((n, j) => n === names[j])) return cached.order;
+    const order = aliasPriority(design, variant.model);
+    this.priorities.set(variant, { names: names.slice(), order });
+    return order;
+  }
+
   private runReplicate(scenario: Scenario, scenarioIndex: number, replicate: number, rows: ReplicateRow[]): void {
     const data = this.simulate(scenarioIndex, replicate);
     for (const variant of scenario.design.variants) {
@@ -63,7 +75,7 @@ export class ReplicateRunner {
           estimation: variant.model.estimation,
           level: variant.model.level,
           interval: intervalOf(variant),
-          aliasPriority: aliasPriority(design, variant.model),
+          aliasPriority: this.priorityFor(variant, design),
           modes: false,
           fitted: false,
         });

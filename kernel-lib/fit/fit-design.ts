@@ -4,9 +4,10 @@ import { aliasingFromCrossProducts, restrictColumns } from './aliasing';
 import { ProfiledDeviance } from './profiled-deviance';
 import { optimiseTheta, BOUNDARY_TOLERANCE } from './optimise-theta';
 import { normalQuantile, studentTQuantile } from '../numeric/distributions';
+import { SMALL_SAMPLE_METHODS, smallSampleIntervals, type BootstrapSettings, type SmallSampleMethod } from './inference/intervals';
 
-/** Interval methods the engine provides. */
-export const INTERVAL_METHODS = ['wald', 'residual-t'] as const;
+/** Interval methods the engine provides (the last four: ./inference). */
+export const INTERVAL_METHODS = ['wald', 'residual-t', ...SMALL_SAMPLE_METHODS] as const;
 export type IntervalMethod = (typeof INTERVAL_METHODS)[number];
 
 export interface FitOptions {
@@ -15,10 +16,16 @@ export interface FitOptions {
   /** Interval level. Default 0.95. */
   level?: number;
   /**
-   * Interval method for fixed effects in a mixed model: 'wald' (normal quantiles) or 'residual-t'
-   * (t quantiles with n − rank(X) df). Default 'wald'. Ordinary least squares always uses exact t intervals.
+   * Interval method for fixed effects in a mixed model: 'wald' (normal quantiles), 'residual-t'
+   * (t quantiles with n − rank(X) df), 'satterthwaite' or 'kenward-roger' (t quantiles with
+   * small-sample df; Kenward-Roger also adjusts the SEs, REML only), 'profile' (profile likelihood)
+   * or 'bootstrap' (parametric bootstrap percentiles); the last two also give intervals for the
+   * variance components. Default here 'wald', the fastest; model descriptions default to
+   * 'satterthwaite' (MODEL_DEFAULTS). Ordinary least squares always uses exact t intervals.
    */
   interval?: IntervalMethod;
+  /** Settings of the 'bootstrap' method (resamples, seed, progress). */
+  bootstrap?: BootstrapSettings;
   /** Compute conditional modes and their SDs. Default true. */
   modes?: boolean;
   /** Compute fitted values and residuals. Default true. */
@@ -82,10 +89,11 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
   for (let a = 0; a < p; a++) {
     for (let b = 0; b < p; b++) fixedCov[alias.estimable[a] * fullP + alias.estimable[b]] = sigma2 * unscaled[a * p + b];
   }
-  const method: IntervalMethod = ols ? 'residual-t' : options.interval ?? 'wald';
-  if (!(INTERVAL_METHODS as readonly string[]).includes(method)) {
-    throw new RangeError(`interval method "${method}" is not available; choose one of: ${INTERVAL_METHODS.join(', ')}`);
+  const requested = options.interval ?? 'wald';
+  if (!(INTERVAL_METHODS as readonly string[]).includes(requested)) {
+    throw new RangeError(`interval method "${requested}" is not available; choose one of: ${INTERVAL_METHODS.join(', ')}`);
   }
+  const method: IntervalMethod = ols ? 'residual-t' : requested;
   // residual-t: exact for OLS (any regression text); for mixed models the simple small-sample correction
   const df = method === 'residual-t' ? n - p : Infinity;
   const crit = method === 'residual-t' ? studentTQuantile(0.5 + level / 2, df) : normalQuantile(0.5 + level / 2);
@@ -101,6 +109,18 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
     row.upper = beta[a] + crit * se;
     row.aliased = false;
   });
+  let varianceIntervals: { lower: number; upper: number }[] | undefined;
+  if ((SMALL_SAMPLE_METHODS as readonly string[]).includes(method)) {
+    const ctx = { design: reduced, dev, estimation: estimation as 'REML' | 'ML', theta, sigma2, beta, columns: alias.estimable };
+    const outcome = smallSampleIntervals(ctx, method as SmallSampleMethod, level, options.bootstrap);
+    alias.estimable.forEach((j, a) => Object.assign(fixed[j], outcome.fixed[a]));
+    const cov = outcome.fixedCov;
+    if (cov) {
+      for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) fixedCov[alias.estimable[a] * fullP + alias.estimable[b]] = cov[a * p + b];
+    }
+    warnings.push(...outcome.warnings);
+    varianceIntervals = outcome.variance;
+  }
 
   // variance components Σ = σ² T Tᵀ per term, reported in the design's term order
   const random: VarianceComponentRow[] = [];
@@ -135,6 +155,7 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
   }
   if (singular) warnings.push('singular fit: a variance component (or a correlation) is estimated on the boundary of its range');
   random.push({ factor: 'residual', term: '', sd: Math.sqrt(sigma2), variance: sigma2 });
+  if (varianceIntervals) random.forEach((r, i) => { r.lower = varianceIntervals![i].lower; r.upper = varianceIntervals![i].upper; });
 
   const wantModes = options.modes ?? true;
   const wantFitted = options.fitted ?? true;

@@ -33,6 +33,10 @@ export function aliasPriority(design: DesignMatrices, model: ResolvedModel): num
 export function fitModel(data: SurveyData, model: ModelSpec | ResolvedModel | string, options: FitOptions = {}): FitResult {
   const resolved = parseModel(model);
   const interval = checkInterval(options.interval ?? resolved.interval);
+  const estimation = options.estimation ?? resolved.estimation;
+  if (interval === 'kenward-roger' && estimation === 'ML' && resolved.groups.some((g) => g.as === 'random')) {
+    throw new QuadratInputError('model.interval: "kenward-roger" is defined for REML fits only, but model.estimation is "ML"; use estimation "REML" or interval "satterthwaite"', { field: 'model.interval' });
+  }
   const design = buildDesign(toColumns(data as Columns), resolved);
   return fitDesign(design, {
     estimation: resolved.estimation,

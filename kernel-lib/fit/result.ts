@@ -4,7 +4,7 @@ export interface FixedEffectRow {
   term: string;
   estimate: number;
   se: number;
-  /** Degrees of freedom of the interval (Infinity for Wald/normal). */
+  /** Degrees of freedom of the interval (Infinity for Wald/normal; NaN for profile and bootstrap, which are not t-based). */
   df: number;
   lower: number;
   upper: number;
@@ -21,6 +21,9 @@ export interface VarianceComponentRow {
   term: string;
   sd: number;
   variance: number;
+  /** Interval for the SD at the fit's level, when the interval method gives one ('profile', 'bootstrap'). */
+  lower?: number;
+  upper?: number;
 }
 
 export interface CorrelationRow {
@@ -45,7 +48,10 @@ export interface FitResult {
   droppedRows: number;
   levels: Record<string, number>;
   fixed: FixedEffectRow[];
-  /** Covariance of the estimable fixed effects, p × p row-major (NaN rows/cols for aliased terms). */
+  /**
+   * Covariance of the estimable fixed effects, p × p row-major (NaN rows/cols for aliased terms);
+   * with the 'kenward-roger' interval method, the Kenward-Roger adjusted covariance.
+   */
   fixedCov: Float64Array;
   random: VarianceComponentRow[];
   correlations: CorrelationRow[];

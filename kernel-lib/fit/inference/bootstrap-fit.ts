@@ -1,0 +1,40 @@
+/**
+ * Bootstrap intervals for a fit already made, on worker threads: the same resamples (and so the
+ * same intervals) as fitDesign with interval 'bootstrap' and the same seed, whatever the number of
+ * workers.
+ */
+import type { DesignMatrices } from '../design';
+import type { FitResult } from '../result';
+import { QuadratInputError } from '../../model/errors';
+import { contextFromFit } from './context';
+import { BOOTSTRAP_DEFAULTS, bootstrapWidth, summariseBootstrap, type BootstrapSummary } from './bootstrap';
+import { runBootstrapParallel } from './bootstrap-pool';
+import { bootstrapModel, type BootstrapSettings } from './intervals';
+
+export interface BootstrapFitOptions extends BootstrapSettings {
+  /** Interval level. Default 0.95. */
+  level?: number;
+  /** Worker threads. Default: all cores (in this thread below 200 resamples). */
+  workers?: number;
+}
+
+/** The fit with bootstrap percentile intervals for the fixed effects and the variance components. */
+export async function bootstrapFit(
+  design: DesignMatrices, fit: FitResult, options: BootstrapFitOptions = {},
+): Promise<{ fit: FitResult; summary: BootstrapSummary }> {
+  const level = options.level ?? 0.95;
+  const resamples = options.resamples ?? BOOTSTRAP_DEFAULTS.resamples;
+  if (!(Number.isInteger(resamples) && resamples >= 1)) {
+    throw new QuadratInputError(`bootstrap.resamples: expected a whole number ≥ 1, got ${resamples}`, { field: 'bootstrap.resamples' });
+  }
+  if (!(level > 0 && level < 1)) throw new QuadratInputError(`bootstrap.level: expected a number strictly between 0 and 1, got ${level}`, { field: 'bootstrap.level' });
+  const ctx = contextFromFit(design, fit);
+  const model = bootstrapModel(ctx, options.seed ?? BOOTSTRAP_DEFAULTS.seed);
+  const samples = await runBootstrapParallel(model, resamples, { workers: options.workers, onProgress: options.onProgress });
+  const summary = summariseBootstrap(samples, bootstrapWidth(ctx.design), level);
+  const p = ctx.design.p;
+  const fixed = fit.fixed.map((r) => ({ ...r }));
+  ctx.columns.forEach((j, a) => Object.assign(fixed[j], { df: NaN, method: 'bootstrap', ...summary.intervals[a] }));
+  const random = fit.random.map((r, i) => ({ ...r, ...summary.intervals[p + i] }));
+  return { fit: { ...fit, fixed, random, warnings: [...fit.warnings, ...summary.warnings] }, summary };
+}

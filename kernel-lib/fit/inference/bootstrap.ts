@@ -139,7 +139,8 @@ export function percentileInterval(values: ArrayLike<number>, level: number): Pe
   const alpha = (1 - level) / 2;
   let clipped = false;
   const at = (prob: number): number => {
-    const pos = (B + 1) * prob;
+    let pos = (B + 1) * prob;
+    if (Math.abs(pos - Math.round(pos)) < 1e-9) pos = Math.round(pos); // (1 − 0.9)/2 is not exactly 0.05
     if (pos < 1) { clipped = true; return sorted[0]; }
     if (pos > B) { clipped = true; return sorted[B - 1]; }
     const lo = Math.floor(pos);

@@ -34,7 +34,7 @@ describe('parseModel: defaults', () => {
       estimation: 'REML',
       categorical: [],
       missing: 'drop',
-      interval: 'wald',
+      interval: 'satterthwaite',
       level: 0.95,
     });
   });

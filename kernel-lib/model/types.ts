@@ -55,7 +55,7 @@ export interface ModelSpec {
   categorical?: string[];
   /** Default: 'drop' (dropped rows are counted in the result). */
   missing?: MissingPolicy;
-  /** Interval method for fixed effects. Default: 'wald'. */
+  /** Interval method for fixed effects. Default: 'satterthwaite'. */
   interval?: string;
   /** Interval level. Default: 0.95. */
   level?: number;

@@ -33,6 +33,51 @@ function timeQuadrat(design, minSeconds) {
   return { fitsPerSecond: count / elapsed, fit: fitDesign(design) };
 }
 
+/** Microseconds per call of fitDesign(design, options), over about `seconds`. */
+function microsecondsPerFit(design, options, seconds) {
+  let count = 0;
+  const start = process.hrtime.bigint();
+  let elapsed = 0;
+  while (elapsed < seconds) {
+    for (let i = 0; i < 20; i++) fitDesign(design, options);
+    count += 20;
+    elapsed = Number(process.hrtime.bigint() - start) / 1e9;
+  }
+  return (1e6 * elapsed) / count;
+}
+
+/**
+ * Cost of the small-sample df for every coefficient relative to the (Wald) fit itself: fitDesign with
+ * the method over fitDesign without it. Wald and the method are timed in alternating rounds and the
+ * median ratio is reported, so background load affects both sides alike. Target for Satterthwaite: ≤ 3x.
+ */
+function timeInference(name, design, seconds) {
+  const methods = ['satterthwaite', 'kenward-roger'];
+  for (const interval of ['wald', ...methods]) for (let i = 0; i < 200; i++) fitDesign(design, { interval });
+  const rounds = 7;
+  const wald = [];
+  const ratios = { satterthwaite: [], 'kenward-roger': [] };
+  const times = { satterthwaite: [], 'kenward-roger': [] };
+  for (let r = 0; r < rounds; r++) {
+    const w = microsecondsPerFit(design, { interval: 'wald' }, seconds / rounds / 3);
+    wald.push(w);
+    for (const interval of methods) {
+      const t = microsecondsPerFit(design, { interval }, seconds / rounds / 3);
+      times[interval].push(t);
+      ratios[interval].push(t / w);
+    }
+  }
+  const median = (v) => v.slice().sort((a, b) => a - b)[Math.floor(v.length / 2)];
+  return {
+    case: name,
+    waldMicroseconds: Math.round(median(wald)),
+    satterthwaiteMicroseconds: Math.round(median(times.satterthwaite)),
+    satterthwaiteFactor: Number(median(ratios.satterthwaite).toFixed(2)),
+    kenwardRogerMicroseconds: Math.round(median(times['kenward-roger'])),
+    kenwardRogerFactor: Number(median(ratios['kenward-roger']).toFixed(2)),
+  };
+}
+
 function timeStatsmodels(file, kind, repeats) {
   try {
     const out = execFileSync(PY, [join(__dirname, 'statsmodels_bench.py'), file, kind, String(repeats)], { encoding: 'utf8' });
@@ -80,6 +125,7 @@ async function studyBench() {
 async function main() {
   const dir = mkdtempSync(join(tmpdir(), 'quadrat-bench-'));
   const rows = [];
+  const inference = [];
   for (const c of engineCases()) {
     const file = join(dir, `${c.kind}-${rows.length}.csv`);
     writeFileSync(file, toCsv(c.columns));
@@ -106,10 +152,11 @@ async function main() {
       maxFixedDifferenceInSE: Number.isFinite(maxDiff) ? Number(maxDiff.toExponential(2)) : null,
       referenceError: ref.error,
     });
+    inference.push(timeInference(c.name, design, quick ? 1 : 4));
   }
   const study = args.includes('--engine-only') ? null : await studyBench();
   if (asJson) {
-    process.stdout.write(JSON.stringify(study ? [...rows, study] : rows, null, 2) + '\n');
+    process.stdout.write(JSON.stringify([...rows, ...(study ? [study] : []), ...inference], null, 2) + '\n');
     return;
   }
   console.log('Engine benchmark: one REML fit per call, same data for Quadrat and statsmodels MixedLM (lbfgs), one core');
@@ -118,6 +165,13 @@ async function main() {
     console.log(r.case.padEnd(44), String(r.fitsPerSecond).padStart(15), String(r.microsecondsPerFit).padStart(8),
       String(r.referenceFitsPerSecond ?? 'n/a').padStart(19), String(r.ratio ?? 'n/a').padStart(7), String(r.maxFixedDifferenceInSE ?? 'n/a').padStart(12));
     if (r.referenceError) console.log(`  (statsmodels not measured: ${r.referenceError})`);
+  }
+  console.log('');
+  console.log('Small-sample df for every coefficient: time of fitDesign with the method over the Wald fit (median of 7 alternating rounds; Satterthwaite target: at most 3x)');
+  console.log('case'.padEnd(44), 'Wald µs'.padStart(9), 'Satterthwaite µs'.padStart(17), 'factor'.padStart(7), 'Kenward-Roger µs'.padStart(17), 'factor'.padStart(7));
+  for (const r of inference) {
+    console.log(r.case.padEnd(44), String(r.waldMicroseconds).padStart(9), String(r.satterthwaiteMicroseconds).padStart(17), `${r.satterthwaiteFactor}x`.padStart(7),
+      String(r.kenwardRogerMicroseconds).padStart(17), `${r.kenwardRogerFactor}x`.padStart(7));
   }
   if (study) {
     console.log('');

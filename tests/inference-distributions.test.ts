@@ -70,6 +70,13 @@ describe('chi-square and F distributions', () => {
     expect(rel(studentTQuantile(0.95, 1), 6.313751514800932)).toBeLessThan(1e-10);
     expect(rel(studentTQuantile(0.975, 7.8), 2.31633686817328)).toBeLessThan(1e-10);
     expect(rel(studentTQuantile(0.995, 30), 2.7499956535670305)).toBeLessThan(1e-10);
+    // tiny Satterthwaite df and far tails (scipy 1.10.1 stats.t.ppf); where the CDF itself is the limit, 1e-9
+    expect(rel(studentTQuantile(0.975, 0.5), 164.55767352096103)).toBeLessThan(1e-9);
+    expect(rel(studentTQuantile(0.975, 0.8), 23.327935796004294)).toBeLessThan(1e-10);
+    expect(rel(studentTQuantile(0.999, 1.5), 52.184430008992784)).toBeLessThan(1e-10);
+    expect(rel(studentTQuantile(0.9, 200), 1.2857987939945954)).toBeLessThan(1e-10);
+    expect(rel(studentTQuantile(0.6, 3), 0.27667066230490933)).toBeLessThan(1e-9);
+    expect(rel(studentTQuantile(0.025, 7.8), -2.31633686817328)).toBeLessThan(1e-10);
   });
 
   it('identities: χ²₁ quantile = z², F(1, ν) quantile = t² and F(d1, ∞) = χ²/d1', () => {

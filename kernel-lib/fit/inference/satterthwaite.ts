@@ -35,6 +35,10 @@ export interface SatterthwaiteCore {
   warnings: string[];
 }
 
+/** Steps (in units of h) and weights of the five-point first-derivative stencil. */
+const STENCIL: [number, number][] = [[2, -1], [1, 8], [-1, -8], [-2, 1]];
+const CORNERS: [number, number][] = [[1, 1], [1, -1], [-1, 1], [-1, -1]];
+
 /** (RXᵀRX)⁻¹ from the engine's last factorisation, written into `out` (p×p). */
 export function unscaledCovarianceInto(dev: ProfiledDeviance, out: Float64Array, col: Float64Array): void {
   const { p, w } = dev;
@@ -76,13 +80,13 @@ export function satterthwaiteCore(dev: ProfiledDeviance, thetaHat: ArrayLike<num
     const s2 = thetaFromPsi(dev, params, psi, thetaHat, theta);
     return Number.isNaN(s2) ? Infinity : unprofiledDeviance(dev, theta, s2);
   };
-  // Φ at the current ψ (call right after criterion(), which factored at that point)
-  const phiHere = (): Float64Array => {
-    const out = new Float64Array(p * p);
-    unscaledCovarianceInto(dev, out, col);
-    const s2 = psi[psi.length - 1];
-    for (let i = 0; i < p * p; i++) out[i] *= s2;
-    return out;
+  const pp = p * p;
+  const scratch = new Float64Array(pp);
+  // add weight·Φ at the current ψ to `into` (call right after criterion(), which factored at that point)
+  const addPhi = (into: Float64Array, weight: number): void => {
+    unscaledCovarianceInto(dev, scratch, col);
+    const w = weight * psi[psi.length - 1];
+    for (let k = 0; k < pp; k++) into[k] += w * scratch[k];
   };
   let attempt = differences(1);
   for (let shrink = 10; !attempt.finite && shrink <= 100; shrink *= 10) attempt = differences(1 / shrink);
@@ -92,36 +96,39 @@ export function satterthwaiteCore(dev: ProfiledDeviance, thetaHat: ArrayLike<num
   function differences(scale: number) {
     const steps = free.map((r) => scale * stepFor(params, r));
     let finite = true;
-    const at = (moves: [number, number][]): number => {
-      for (const [i, t] of moves) psi[free[i]] = params.values[free[i]] + t * steps[i];
+    const value = (): number => {
       const v = criterion();
-      for (const [i] of moves) psi[free[i]] = params.values[free[i]];
       if (!Number.isFinite(v)) finite = false;
       return v;
     };
-    const f0 = at([]);
-    const phi0 = phiHere();
+    const move = (i: number, t: number) => { psi[free[i]] = params.values[free[i]] + t * steps[i]; };
+    const reset = (i: number) => { psi[free[i]] = params.values[free[i]]; };
+    const f0 = value();
+    const phi0 = new Float64Array(pp);
+    addPhi(phi0, 1);
     const grads: Float64Array[] = [];
     const h = new Float64Array(f * f);
+    const vals = new Float64Array(4);
     for (let i = 0; i < f; i++) {
-      const vals: number[] = [];
-      const phis: Float64Array[] = [];
-      for (const t of [2, 1, -1, -2]) {
-        psi[free[i]] = params.values[free[i]] + t * steps[i];
-        const v = criterion();
-        if (!Number.isFinite(v)) finite = false;
-        vals.push(v);
-        phis.push(phiHere());
-        psi[free[i]] = params.values[free[i]];
-      }
-      // five-point stencils: f'' and Φ' with O(h⁴) error
+      const g = new Float64Array(pp);
+      // five-point stencils: f'' = (−f₂ + 16f₁ − 30f₀ + 16f₋₁ − f₋₂)/12h², Φ' = (−Φ₂ + 8Φ₁ − 8Φ₋₁ + Φ₋₂)/12h, both O(h⁴)
+      STENCIL.forEach(([t, wPhi], k) => {
+        move(i, t);
+        vals[k] = value();
+        addPhi(g, wPhi / (12 * steps[i]));
+        reset(i);
+      });
       h[i * f + i] = (-vals[0] + 16 * vals[1] - 30 * f0 + 16 * vals[2] - vals[3]) / (12 * steps[i] * steps[i]);
-      const g = new Float64Array(p * p);
-      for (let k = 0; k < p * p; k++) g[k] = (-phis[0][k] + 8 * phis[1][k] - 8 * phis[2][k] + phis[3][k]) / (12 * steps[i]);
       grads.push(g);
       for (let j = 0; j < i; j++) {
-        const cross = (t: number) =>
-          (at([[i, t], [j, t]]) - at([[i, t], [j, -t]]) - at([[i, -t], [j, t]]) + at([[i, -t], [j, -t]])) / (4 * t * t * steps[i] * steps[j]);
+        // cross differences at steps h and 2h, Richardson-combined: O(h⁴)
+        const cross = (t: number) => {
+          let sum = 0;
+          for (const [si, sj] of CORNERS) { move(i, si * t); move(j, sj * t); sum += si * sj * value(); }
+          reset(i);
+          reset(j);
+          return sum / (4 * t * t * steps[i] * steps[j]);
+        };
         h[i * f + j] = h[j * f + i] = (4 * cross(1) - cross(2)) / 3;
       }
     }

@@ -140,3 +140,29 @@ describe('Satterthwaite and Kenward-Roger against dense n×n formulas', () => {
     }
   });
 });
+
+describe('variance components on the boundary', () => {
+  it('a group variance estimated at 0 is held fixed: df = n − p, the residual df, and a warning names it', () => {
+    // With only σ² estimated, Φ = σ²(XᵀX)⁻¹ and Var(σ̂²) = 2σ⁴/(n − p) under REML, so ν = n − p exactly
+    // (Satterthwaite 1946 with one chi-square component); Kenward-Roger's adjustment vanishes (Φ_A = Φ).
+    const rng = testRandom(31);
+    const X: number[][] = [];
+    const y: number[] = [];
+    const g: number[] = [];
+    for (let l = 0; l < 6; l++) for (let k = 0; k < 4; k++) { const x = rng.normal(); X.push([1, x]); y.push(2 + x + rng.normal()); g.push(l); }
+    // shrink the group means towards the grand mean so that MSB < MSW (REML estimate of σₐ² is 0)
+    const means = Array.from({ length: 6 }, (_, l) => y.slice(l * 4, l * 4 + 4).reduce((a, b) => a + b, 0) / 4);
+    const grand = y.reduce((a, b) => a + b, 0) / y.length;
+    const yb = y.map((v, i) => v - 0.9 * (means[g[i]] - grand));
+    const d = handDesign(X, ['intercept', 'x'], yb, [{ factor: 'g', index: g }]);
+    for (const interval of ['satterthwaite', 'kenward-roger'] as const) {
+      const fit = fitDesign(d, { interval });
+      expect(fit.singular).toBe(true);
+      for (const row of fit.fixed) expect(Math.abs(row.df - (d.n - d.p)), `${interval} ${row.term}`).toBeLessThan(1e-6 * d.n);
+      expect(fit.warnings.join(' ')).toMatch(/var\(g\) on the boundary, held fixed/);
+    }
+    const kr = fitDesign(d, { interval: 'kenward-roger' });
+    const wald = fitDesign(d, { interval: 'wald' });
+    kr.fixed.forEach((r, j) => expect(rel(r.se, wald.fixed[j].se)).toBeLessThan(1e-12));
+  });
+});

@@ -128,8 +128,7 @@ function splitPlotAnova(rows: { k: number; i: number; j: number; y: number }[], 
 }
 
 describe('balanced split-plot: F tests equal the classical ANOVA', () => {
-  // Kenward and Roger (1997, §5 and Table 1) show their method reproduces the exact F tests of
-  // balanced designs; the Fai-Cornelius Satterthwaite F does too when every eigen-contrast has the
+  // Kenward and Roger (1997) show their method reproduces the exact F tests of balanced designs; the Fai-Cornelius Satterthwaite F does too when every eigen-contrast has the
   // same error stratum. Textbook df: whole plot (r−1)(a−1), sub plot a(r−1)(b−1).
   const r = 4, a = 3, b = 4;
   for (const seed of [3, 17]) {

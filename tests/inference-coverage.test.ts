@@ -9,7 +9,7 @@ import type { MetricRow } from '../kernel-lib/study/metrics';
  * Seeded simulation: a random intercept with 3 or 4 sites and a site-level covariate (elevation).
  * Its coefficient is estimated from between-site contrasts with only sites − 2 df, so Wald intervals
  * (normal quantiles) undercover badly; Satterthwaite and Kenward-Roger t intervals should be much
- * closer to 95% (Kenward and Roger 1997, §5; Schaalje, McBride and Fellingham 2002, JABES 7:512).
+ * closer to 95% (Kenward and Roger 1997; Schaalje, McBride and Fellingham 2002, JABES 7:512).
  * Check: each small-sample coverage is nearer 0.95 than Wald's by more than 3 combined MCSE.
  * Seen with this seed (3000 replicates): 3 sites Wald 0.779, Satterthwaite and KR 0.878; 4 sites
  * Wald 0.842, both 0.936. The rest of the shortfall comes from fits with the site SD at 0, where the

@@ -8,7 +8,7 @@ import { denseFaiCorneliusF, denseInference, denseKenwardRogerF, denseSatterthwa
  * The engine's Satterthwaite df (finite differences of the unprofiled criterion) and Kenward-Roger
  * quantities ((q+p)-space algebra) against the textbook n×n formulas computed with ml-matrix
  * (tests/helpers/dense-inference.ts): Satterthwaite (1946) with the observed information of
- * Searle, Casella and McCulloch (1992, §6.3 ML and §6.6 REML); Kenward and Roger (1997, eq. 3 and §4).
+ * Searle, Casella and McCulloch (1992, §6.3 ML and §6.6 REML); Kenward and Roger (1997, adjusted covariance and §4).
  */
 type Kind = 'unbalanced' | 'crossed' | 'nested' | 'slope' | 'independent-slopes';
 
@@ -96,7 +96,7 @@ describe('Satterthwaite and Kenward-Roger against dense n×n formulas', () => {
         expect(rel(fit.fixed[j].df, denseSatterthwaiteDf(dense, unit(d.p, j), dense.expectedInformation))).toBeLessThan(1e-9);
         for (let k = 0; k < d.p; k++) expect(rel(fit.fixedCov[j * d.p + k], dense.phiAdjusted.get(j, k))).toBeLessThan(1e-8);
       }
-      // the adjustment inflates the variances with few groups (Kenward and Roger 1997, §3)
+      // the adjustment inflates the variances with few groups (Kenward and Roger 1997)
       expect(fit.fixed[0].se).toBeGreaterThan(Math.sqrt(dense.phi.get(0, 0)));
     });
   }

@@ -80,7 +80,7 @@ describe('chi-square and F distributions', () => {
   });
 
   it('identities: χ²₁ quantile = z², F(1, ν) quantile = t² and F(d1, ∞) = χ²/d1', () => {
-    // Abramowitz and Stegun (1964), 26.4.13 (χ²₁ = Z²) and 26.6.13 (F(1, ν) = t²_ν); common practice for the limit.
+    // Standard identities (χ²₁ = Z², F(1, ν) = t²_ν, d1·F(d1, ∞) = χ²_d1): common practice, no source.
     expect(rel(chiSquareQuantile(0.9, 1), normalQuantile(0.95) ** 2)).toBeLessThan(1e-10);
     expect(rel(fQuantile(0.95, 1, 7), studentTQuantile(0.975, 7) ** 2)).toBeLessThan(1e-9);
     expect(rel(fCdf(2, 3, Infinity), chiSquareCdf(6, 3))).toBeLessThan(1e-14);

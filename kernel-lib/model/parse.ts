@@ -40,8 +40,8 @@ const MISSING_POLICIES: readonly MissingPolicy[] = ['drop', 'reject'];
 export const MODEL_DEFAULTS = {
   estimation: 'REML' as Estimation,
   missing: 'drop' as MissingPolicy,
-  // Wald intervals are too narrow with few groups (Kenward and Roger 1997, §5); Satterthwaite df
-  // cost about one more fit (bench/run.js)
+  // Wald intervals are too narrow with few groups (Kenward and Roger 1997; tests/inference-coverage);
+  // Satterthwaite df cost about one more fit (bench/run.js)
   interval: 'satterthwaite',
   level: 0.95,
 };

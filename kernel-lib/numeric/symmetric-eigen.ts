@@ -8,7 +8,7 @@ export interface SymmetricEigen {
 
 /**
  * Cyclic Jacobi rotations on a symmetric n×n row-major matrix (Golub and Van Loan, Matrix
- * Computations, 4th ed. 2013, §8.5.2, Algorithm 8.5.3). Meant for the handful of contrasts of a
+ * Computations, 4th ed. 2013, §8.5, Jacobi methods). Meant for the handful of contrasts of a
  * multi-degree-of-freedom test, where n is small; the input is not modified.
  */
 export function symmetricEigen(a: ArrayLike<number>, n: number): SymmetricEigen {

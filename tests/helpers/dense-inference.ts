@@ -11,7 +11,7 @@ import { denseMarginalCovariance } from './dense-likelihood';
  */
 export interface DenseInference {
   phi: Matrix;
-  /** Kenward-Roger adjusted covariance (Kenward and Roger 1997, eq. 3 with R = 0). */
+  /** Kenward-Roger adjusted covariance (Kenward and Roger 1997, with R = 0). */
   phiAdjusted: Matrix;
   /** Expected REML information ½ tr(P Vᵢ P Vⱼ) (Searle, Casella and McCulloch 1992, §6.6). */
   expectedInformation: Matrix;

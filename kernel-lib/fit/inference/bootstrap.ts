@@ -129,7 +129,7 @@ export interface PercentileInterval {
 
 /**
  * Percentile interval of the finite values: the (B+1)α-th and (B+1)(1−α)-th order statistics,
- * interpolated between neighbours (Davison and Hinkley 1997, §5.2, eq. 5.18 and the remark after it).
+ * interpolated between neighbours (Davison and Hinkley 1997, §5.2).
  * Positions outside 1..B take the extreme value (`clipped`).
  */
 export function percentileInterval(values: ArrayLike<number>, level: number): PercentileInterval & { clipped: boolean; count: number } {

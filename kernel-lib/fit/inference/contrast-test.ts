@@ -1,7 +1,7 @@
 /**
  * Tests of linear hypotheses H₀: Lβ = 0 on the fixed effects of a fitted mixed model, with
  * small-sample denominator df: Satterthwaite (multi-df by Fai and Cornelius 1996, J. Statist.
- * Comput. Simul. 54:363, §2.2) or Kenward-Roger (Kenward and Roger 1997, §4, with their scaling).
+ * Comput. Simul. 54:363) or Kenward-Roger (Kenward and Roger 1997, §4, with their scaling).
  */
 import type { DesignMatrices } from '../design';
 import type { FitResult } from '../result';

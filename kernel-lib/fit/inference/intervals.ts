@@ -9,7 +9,7 @@ import { withResidualResponse, type InferenceContext } from './context';
 import { satterthwaiteCore, satterthwaiteDf } from './satterthwaite';
 import { kenwardRogerCore, kenwardRogerDf, kenwardRogerSizeProblem } from './kenward-roger';
 import { profileFixedEffects, profileVariance, varianceTargets } from './profile';
-import { BOOTSTRAP_DEFAULTS, runBootstrapInThread, summariseBootstrap } from './bootstrap';
+import { BOOTSTRAP_DEFAULTS, bootstrapWidth, runBootstrapInThread, summariseBootstrap } from './bootstrap';
 
 export const SMALL_SAMPLE_METHODS = ['satterthwaite', 'kenward-roger', 'profile', 'bootstrap'] as const;
 export type SmallSampleMethod = (typeof SMALL_SAMPLE_METHODS)[number];
@@ -112,7 +112,7 @@ export function smallSampleIntervals(
   }
   const model = bootstrapModel(ctx, bootstrap.seed ?? BOOTSTRAP_DEFAULTS.seed);
   const samples = runBootstrapInThread(model, resamples, bootstrap.onProgress);
-  const summary = summariseBootstrap(samples, model.design.p + varianceTargets(ctx).length, level);
+  const summary = summariseBootstrap(samples, bootstrapWidth(model.design), level);
   warnings.push(...summary.warnings);
   const fixed = Array.from({ length: p }, (_, j) => ({ se: wald(j), df: NaN, ...summary.intervals[j] }));
   return { fixed, variance: summary.intervals.slice(p), warnings };

@@ -1,7 +1,7 @@
 /**
  * Kenward-Roger small-sample inference for fixed effects fitted by REML (Kenward and Roger 1997,
  * Biometrics 53:983-997): the bias-adjusted covariance
- *   Φ_A = Φ + 2Φ [Σᵢⱼ Wᵢⱼ (Qᵢⱼ − PᵢΦPⱼ)] Φ          (their eq. 3; Rᵢⱼ = 0 as V is linear in ψ)
+ *   Φ_A = Φ + 2Φ [Σᵢⱼ Wᵢⱼ (Qᵢⱼ − PᵢΦPⱼ)] Φ          (Rᵢⱼ = 0 as V is linear in ψ)
  * with Pᵢ = ∂Φ⁻¹/∂ψᵢ = −XᵀV⁻¹VᵢV⁻¹X, Qᵢⱼ = XᵀV⁻¹VᵢV⁻¹VⱼV⁻¹X and W the inverse of the expected
  * REML information ½ tr(P Vᵢ P Vⱼ), and the scaled F statistic λF ~ F(ℓ, m) of their §4.
  *

@@ -1,6 +1,6 @@
 /**
  * Profile-likelihood intervals (Venzon and Moolgavkar 1988, Applied Statistics 37:87; for mixed
- * models Bates et al. 2015, J. Stat. Softw. 67(1), §5.1): the set of values v of one parameter at
+ * models Bates et al. 2015, J. Stat. Softw. 67(1), on profiling the deviance): the set of values v of one parameter at
  * which the likelihood-ratio statistic D(v) − D̂, every other parameter re-optimised, stays below the
  * chi-square(1) quantile at the level. Found by root finding on the signed root
  * ζ(v) = sign(v − v̂)·√(D(v) − D̂), which is nearly linear in v, at ζ = ±z, z² = χ²₁(level).
@@ -13,8 +13,7 @@
  *   SD-correlation parameterisation below.
  * A lower limit that the profile never reaches above 0 is reported as 0 (`lowerAtZero`).
  */
-import type { ProfiledDeviance } from '../profiled-deviance';
-import { ProfiledDeviance as Engine } from '../profiled-deviance';
+import { ProfiledDeviance } from '../profiled-deviance';
 import { optimiseTheta } from '../optimise-theta';
 import { restrictColumns } from '../aliasing';
 import { brentMinimise } from '../../numeric/brent';
@@ -97,7 +96,7 @@ function minimiseTheta(dev: ProfiledDeviance, start: ArrayLike<number>): { theta
 }
 
 function mlOptimum(ctx: InferenceContext): MlOptimum {
-  const dev = new Engine(ctx.design, false);
+  const dev = new ProfiledDeviance(ctx.design, false);
   const { theta, deviance } = minimiseTheta(dev, ctx.theta);
   dev.factor(theta);
   const beta = dev.beta();
@@ -124,7 +123,7 @@ export function profileFixedEffects(ctx: InferenceContext, level: number): Profi
   for (let j = 0; j < p; j++) {
     const keep = Array.from({ length: p }, (_, a) => a).filter((a) => a !== j);
     const minus = restrictColumns({ ...design, y: resid }, keep);
-    const dev = new Engine(minus, false);
+    const dev = new ProfiledDeviance(minus, false);
     const shifted = new Float64Array(n);
     let start: Float64Array = ml.theta;
     let side = 0;
@@ -148,7 +147,7 @@ export function profileFixedEffects(ctx: InferenceContext, level: number): Profi
 // Variance parameters in the SD-correlation parameterisation: φ = [log σ, t₁ … t_K, w …], where
 // tᵢ = (SD of random effect i)/σ and each correlated term's template is T = diag(t)·L_R with L_R
 // the Cholesky factor of the correlation matrix, row i = (wᵢ₁, …, wᵢ,ᵢ₋₁, 1)/‖·‖ (any real w gives a
-// valid correlation matrix; Pinheiro and Bates 1996, Statistics and Computing 6:289, §2.3).
+// valid correlation matrix; Pinheiro and Bates 1996, Statistics and Computing 6:289).
 
 interface SdLayout {
   /** φ index of tᵢ for each θ-template row, per engine term: tIndex[s][i]. */

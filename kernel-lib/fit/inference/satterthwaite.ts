@@ -12,7 +12,7 @@
  * 1 + 4d² evaluations for d free variance parameters, independent of n and of the number of contrasts.
  * Steps are relative, h_r = η·scale_r with η = 1e-3, and each difference is Richardson-extrapolated
  * from steps h and 2h (fourth-order accurate), which leaves rounding, O(ε/η²), as the main error:
- * about 1e-8 relative in ν (Nocedal and Wright, Numerical Optimization, 2nd ed. 2006, §8.1;
+ * about 1e-8 relative in ν at an exact optimum (in practice the optimiser's precision dominates) (Nocedal and Wright, Numerical Optimization, 2nd ed. 2006, §8.1;
  * Richardson extrapolation: Burden and Faires, Numerical Analysis, 9th ed. 2011, §4.2).
  */
 import type { ProfiledDeviance } from '../profiled-deviance';

@@ -50,3 +50,4 @@ export * from './plots/index';
 export * from './display/index';
 export { readStudyFolder, studyReportHtml, studyChartSections } from './display/study-report';
 export type { StudyResults } from './display/study-report';
+export * from './notebook/index';

@@ -116,3 +116,10 @@ describe('study runner determinism (same seed, same numbers)', () => {
     await expect(runStudy({ ...design, replicates: 6 }, { out, workers: 1 })).rejects.toThrow(/different study/);
   });
 });
+
+describe('study validation before anything runs', () => {
+  it('refuses an interval method the engine does not provide, naming the variant field', async () => {
+    const bad = { ...design, variants: [{ name: 'v', model: { ...design.variants[0].model, interval: 'magic' } }] };
+    await expect(runStudy(bad, { out: fresh('bad'), workers: 1 })).rejects.toThrow(/design\.variants\[0\]\.model\.interval/);
+  });
+});

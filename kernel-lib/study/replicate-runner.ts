@@ -1,7 +1,7 @@
 import { buildDesign } from '../data/build-design';
 import type { Columns } from '../data/columns';
-import { fitDesign, INTERVAL_METHODS, type IntervalMethod } from '../fit/fit-design';
-import { aliasPriority } from '../fit/fit-model';
+import { fitDesign, type IntervalMethod } from '../fit/fit-design';
+import { aliasPriority, checkInterval } from '../fit/fit-model';
 import type { FitResult } from '../fit/result';
 import type { DesignMatrices } from '../fit/design';
 import { expandGrid, type Scenario } from '../design/grid';
@@ -91,8 +91,7 @@ export class ReplicateRunner {
 }
 
 function intervalOf(variant: ResolvedVariant): IntervalMethod {
-  const m = variant.model.interval;
-  return ((INTERVAL_METHODS as readonly string[]).includes(m) ? m : 'wald') as IntervalMethod;
+  return checkInterval(variant.model.interval, `variant "${variant.name}" model.interval`);
 }
 
 function fitStatus(fit: FitResult | null, reason: string): ReplicateStatus {

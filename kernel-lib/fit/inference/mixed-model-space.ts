@@ -8,7 +8,8 @@
  * random term's covariance), so products and traces reduce to (q+p)×(q+p) algebra on C = MᵀM:
  *   V⁻¹M = σ⁻² M (I − S̃C),  V⁻¹X = σ⁻² M K with K = [−S ZᵀX; I],  J = C K = σ² MᵀV⁻¹X,
  *   P = V⁻¹ − V⁻¹XΦXᵀV⁻¹ = σ⁻²(I − M H Mᵀ) with H = S̃ + K U Kᵀ and U = (XᵀV⁻¹X)⁻¹/σ².
- * Cost O((q+p)³), memory a few (q+p)² arrays; independent of n once C is built.
+ * Cost O((q+p)³) with several random terms, O((q+p)²(k+p)) with one (block-diagonal S); memory a few
+ * (q+p)² arrays; independent of n once C is built.
  */
 import type { DesignMatrices } from '../design';
 import type { ProfiledDeviance } from '../profiled-deviance';
@@ -131,7 +132,9 @@ export function mixedModelSpace(
   dev.setTheta(theta);
   // A = ΛᵀC_ZZΛ + I, then S = Λ A⁻¹ Λᵀ
   const s = new Float64Array(q * q);
-  if (q > 0) {
+  if (dev.terms.length === 1) {
+    blockDiagonalS(c, dim, dev, s);
+  } else if (q > 0) {
     const a = new Float64Array(q * q);
     for (let r = 0; r < q; r++) for (let col = 0; col < q; col++) a[r * q + col] = c[r * dim + col];
     timesLambda(a, q, q, dev); // C_ZZ Λ
@@ -220,6 +223,36 @@ export function mixedModelSpace(
   }
   symmetrise(b, dim);
   return { q, p, dim, n: design.n, sigma2, c, s, k, j, u, b0, b, hc };
+}
+
+/**
+ * One random term: ZᵀZ, A and S are block diagonal (one k×k block per level), so S is built block by
+ * block in O(m k³) instead of O(q³): S_l = T (TᵀG_lT + I)⁻¹ Tᵀ with G_l the level's block of ZᵀZ.
+ */
+function blockDiagonalS(c: Float64Array, dim: number, dev: ProfiledDeviance, s: Float64Array): void {
+  const t = dev.terms[0];
+  const k = t.k;
+  const T = dev.templates[0];
+  const q = dev.q;
+  const a = new Float64Array(k * k);
+  const inv = new Float64Array(k * k);
+  const ta = new Float64Array(k * k);
+  for (let l = 0; l < t.m; l++) {
+    const base = l * k;
+    // A = Tᵀ G T + I
+    for (let i = 0; i < k; i++) {
+      for (let j = 0; j < k; j++) {
+        let sum = i === j ? 1 : 0;
+        for (let u = i; u < k; u++) for (let v = j; v < k; v++) sum += T[u * k + i] * c[(base + u) * dim + base + v] * T[v * k + j];
+        a[i * k + j] = sum;
+      }
+    }
+    if (choleskyInPlace(a, k) >= 0) { s.fill(NaN); return; }
+    inverseFromCholesky(a, k, inv);
+    // S_l = T A⁻¹ Tᵀ
+    for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) { let sum = 0; for (let u = 0; u <= i; u++) sum += T[i * k + u] * inv[u * k + j]; ta[i * k + j] = sum; }
+    for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) { let sum = 0; for (let v = 0; v <= j; v++) sum += ta[i * k + v] * T[j * k + v]; s[(base + i) * q + base + j] = sum; }
+  }
 }
 
 function transposeInPlace(a: Float64Array, n: number): void {

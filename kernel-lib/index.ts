@@ -21,6 +21,8 @@ export { fitDesign, INTERVAL_METHODS } from './fit/fit-design';
 export type { FitOptions, IntervalMethod } from './fit/fit-design';
 export type { FitResult, FixedEffectRow, VarianceComponentRow, CorrelationRow, ConditionalModeRow } from './fit/result';
 export type { DesignMatrices, RandomTerm } from './fit/design';
+export { contrastTest, termTest, termCoefficients, likelihoodRatioTest, bootstrapFit } from './fit/inference/index';
+export type { ContrastTestResult, LikelihoodRatioTest, BootstrapFitOptions } from './fit/inference/index';
 
 // Survey designs and simulation
 export { parseDesign } from './design/parse';

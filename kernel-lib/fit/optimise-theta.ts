@@ -46,7 +46,7 @@ export function optimiseTheta(dev: ProfiledDeviance, start?: ArrayLike<number>):
     const upper = new Float64Array(d).fill(THETA_MAX);
     const lower = dev.lowerBounds;
     const lowerFinite = Float64Array.from(lower, (v) => (Number.isFinite(v) ? v : -THETA_MAX));
-    const s = start ?? dev.initialTheta();
+    const s = start ?? dev.momentTheta();
     const f = (x: Float64Array) => dev.evaluate(x);
     let res = nelderMeadBounded(f, s, lowerFinite, upper, { step: 0.25 });
     evaluations += res.evaluations;

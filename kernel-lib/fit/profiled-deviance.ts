@@ -158,6 +158,50 @@ export class ProfiledDeviance {
     return theta;
   }
 
+  /**
+   * Starting θ from moments when every term is a random intercept: per factor, the spread of the
+   * level means of the least-squares residuals beyond what the residual variance explains
+   * (the one-way ANOVA estimator, Searle, Casella and McCulloch 1992, §3.5), floored at 0.1 so the
+   * simplex can still move. Falls back to identity templates otherwise.
+   */
+  momentTheta(): Float64Array {
+    const theta = this.initialTheta();
+    if (!this.allScalar || !this.terms.length) return theta;
+    const { p, w, n } = this;
+    // least squares at θ = 0: factor [X y]ᵀ[X y] into the workspace
+    const M = this.m;
+    M.set(this.xyxy);
+    if (choleskyInPlace(M, w) >= 0 || n - p < 1) return theta;
+    const beta = this.beta();
+    const rss = M[p * w + p] * M[p * w + p];
+    const sigma2 = rss / (n - p);
+    if (!(sigma2 > 0)) return theta;
+    for (let s = 0; s < this.terms.length; s++) {
+      const t = this.terms[s];
+      let sumMeans = 0;
+      let sumSq = 0;
+      let sumInvN = 0;
+      let levels = 0;
+      for (let l = 0; l < t.m; l++) {
+        const row = t.start + l;
+        const count = s === 0 ? this.g1[l] : this.z2z2[(row - this.q1) * this.q2 + (row - this.q1)];
+        if (!(count > 0)) continue;
+        let e = this.zxy[row * w + p];
+        for (let a = 0; a < p; a++) e -= this.zxy[row * w + a] * beta[a];
+        const mean = e / count;
+        sumMeans += mean;
+        sumSq += mean * mean;
+        sumInvN += 1 / count;
+        levels++;
+      }
+      if (levels < 2) continue;
+      const varMeans = (sumSq - (sumMeans * sumMeans) / levels) / (levels - 1);
+      const between = varMeans - (sigma2 * sumInvN) / levels;
+      theta[t.thetaStart] = Math.max(0.1, Math.sqrt(Math.max(0, between) / sigma2));
+    }
+    return theta;
+  }
+
   private columnIndexOfLevelRow(t: TermLayout, level: number, j: number): number {
     return t.start + level * t.k + j;
   }

@@ -57,6 +57,8 @@ export interface RunStudyResult {
   warnings: string[];
   /** Summary metrics, when the whole study (not a shard) is complete. */
   metrics: MetricRow[] | null;
+  /** Seconds spent simulating and fitting (batches), and assembling replicates.csv and the metrics. */
+  timings: { runSeconds: number; finaliseSeconds: number };
 }
 
 export const DEFAULT_BATCH_SIZE = 25;
@@ -140,6 +142,7 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
   report();
   const workers = Math.max(1, Math.min(options.workers ?? availableParallelism(), todo.length || 1));
   let ran = 0;
+  const runStarted = Date.now();
   const finish = (b: Batch, csv: string) => {
     writeBatch(options.out, b, csv);
     done += b.to - b.from;
@@ -158,28 +161,38 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
   }
   const interrupted = Boolean(options.signal?.aborted) && ran < todo.length;
   const complete = !interrupted && ran === todo.length;
+  const runSeconds = (Date.now() - runStarted) / 1000;
+  const finaliseStarted = Date.now();
   let metrics: MetricRow[] | null = null;
   if (complete && !options.shard) metrics = finalise(options.out, all);
   return {
     folder: options.out, scenarios, batchesRun: ran, batchesSkipped: mine.length - todo.length, complete, interrupted,
     seconds: (Date.now() - started) / 1000, warnings, metrics,
+    timings: { runSeconds, finaliseSeconds: (Date.now() - finaliseStarted) / 1000 },
   };
 }
 
-/** Hand batches to a pool of worker threads, in order; each finished batch is written at once. */
+/**
+ * Hand batches to a pool of worker threads, two in flight per worker so that a worker never waits
+ * for the main thread to write the previous batch; each finished batch is written at once.
+ */
 function runPool(
   todo: Batch[], count: number, source: unknown, signal: AbortSignal | undefined, finish: (b: Batch, csv: string) => void,
 ): Promise<void> {
+  const IN_FLIGHT = 2;
   return new Promise((resolve, reject) => {
     const path = workerPath();
     let next = 0;
     let active = 0;
-    let failed = false;
+    let settled = false;
     const pool: Worker[] = [];
     const stopAll = () => { for (const w of pool) void w.terminate(); };
+    const done = () => { if (!settled) { settled = true; stopAll(); resolve(); } };
+    const fail = (e: Error) => { if (!settled) { settled = true; stopAll(); reject(e); } };
     const dispatch = (w: Worker) => {
-      if (failed || signal?.aborted || next >= todo.length) {
-        if (active === 0) { stopAll(); resolve(); }
+      if (settled) return;
+      if (signal?.aborted || next >= todo.length) {
+        if (active === 0) done();
         return;
       }
       const b = todo[next++];
@@ -188,23 +201,23 @@ function runPool(
     };
     const byOrdinal = new Map(todo.map((b) => [b.ordinal, b]));
     for (let i = 0; i < count; i++) {
-      const w = new Worker(path, { workerData: { design: source } });
+      // a larger young generation: fits allocate many short-lived objects, and the default nursery of a
+      // worker thread makes the scavenger run far more often than in the main thread
+      const w = new Worker(path, { workerData: { design: source }, resourceLimits: { maxYoungGenerationSizeMb: 64 } });
       pool.push(w);
       w.on('message', (reply: BatchReply) => {
         active--;
         if ('error' in reply) {
-          failed = true;
-          stopAll();
-          reject(new Error(`batch ${reply.ordinal} failed: ${reply.error}`));
+          fail(new Error(`batch ${reply.ordinal} failed: ${reply.error}`));
           return;
         }
-        finish(byOrdinal.get(reply.ordinal)!, reply.csv);
+        if (!settled) finish(byOrdinal.get(reply.ordinal)!, reply.csv);
         dispatch(w);
       });
-      w.on('error', (e) => { if (!failed) { failed = true; stopAll(); reject(e); } });
-      dispatch(w);
+      w.on('error', (e) => fail(e));
+      for (let k = 0; k < IN_FLIGHT; k++) dispatch(w);
     }
-    signal?.addEventListener('abort', () => { if (active === 0) { stopAll(); resolve(); } }, { once: true });
+    signal?.addEventListener('abort', () => { if (active === 0) done(); }, { once: true });
   });
 }
 

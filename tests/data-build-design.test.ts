@@ -4,9 +4,9 @@ import { describe, expect, it } from 'vitest';
 import { buildDesign, extractResponse } from '../kernel-lib/data/build-design';
 import { columnsFromRecords, columnsFromTable, toColumns, type Columns } from '../kernel-lib/data/columns';
 import type { DesignMatrices } from '../kernel-lib/fit/design';
-import { QuadratInputError } from '../kernel-lib/model/errors';
 import { parseModel } from '../kernel-lib/model/parse';
 import type { ModelSpec } from '../kernel-lib/model/types';
+import { inputError } from './helpers/input-error';
 
 // Invented example table (not field data): twelve quadrats.
 const quadrats: Columns = {
@@ -22,15 +22,6 @@ function design(data: Columns, spec: ModelSpec): DesignMatrices {
   return buildDesign(data, parseModel(spec));
 }
 
-function inputError(fn: () => unknown): QuadratInputError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(QuadratInputError);
-    return e as QuadratInputError;
-  }
-  throw new Error('expected a QuadratInputError, nothing was thrown');
-}
 
 /** Column `name` of X as a plain array. */
 function column(d: DesignMatrices, name: string): number[] {

@@ -3,17 +3,8 @@ import { tmpdir } from 'os';
 import { join } from 'path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { parseCsv, readCsvFile } from '../kernel-lib/data/csv';
-import { QuadratInputError } from '../kernel-lib/model/errors';
+import { inputError } from './helpers/input-error';
 
-function inputError(fn: () => unknown): QuadratInputError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(QuadratInputError);
-    return e as QuadratInputError;
-  }
-  throw new Error('expected a QuadratInputError, nothing was thrown');
-}
 
 describe('parseCsv: RFC 4180 quoting', () => {
   it('matches Python csv.reader on quoted delimiters, doubled quotes and quoted line breaks', () => {

@@ -1,21 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { QuadratInputError } from '../kernel-lib/model/errors';
 import { modelToJson, parseModel } from '../kernel-lib/model/parse';
 import type { ModelSpec } from '../kernel-lib/model/types';
+import { inputError } from './helpers/input-error';
 
 // The validation rules below are the project's own contract (kernel-lib/model/parse.ts);
 // field-path messages and rejecting unknown keys are common practice, no source.
 
-/** The error thrown by `fn`, checked to be a QuadratInputError. */
-function inputError(fn: () => unknown): QuadratInputError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(QuadratInputError);
-    return e as QuadratInputError;
-  }
-  throw new Error('expected a QuadratInputError, nothing was thrown');
-}
 
 function deepFreeze<T>(value: T): T {
   if (typeof value === 'object' && value !== null) {

@@ -58,7 +58,6 @@ export class ProfiledDeviance {
   readonly r: Float64Array; // q × w
   readonly m: Float64Array; // w × w
   private readonly block: Float64Array;
-  private readonly tmpRow: Float64Array;
   private design: DesignMatrices;
   /** The last evaluation failed a factorisation (reported, not thrown). */
   lastFailure = '';
@@ -96,7 +95,7 @@ export class ProfiledDeviance {
     const { q1: Q1, q2: Q2, k1: K1, m1: M1, q: Q, w: W } = this;
     const templateSize = this.terms.reduce((a, t) => a + t.k * t.k, 0);
     const arena = new Float64Arena(
-      this.thetaLength + 2 * M1 * K1 * K1 + 2 * Q2 * Q1 + 2 * Q2 * Q2 + 2 * Q * W + 2 * W * W + templateSize + Math.max(1, K1 * K1) + Math.max(1, Q1) + Q2,
+      this.thetaLength + 2 * M1 * K1 * K1 + 2 * Q2 * Q1 + 2 * Q2 * Q2 + 2 * Q * W + 2 * W * W + templateSize + Math.max(1, K1 * K1) + Q2,
     );
     this.lowerBounds = arena.take(this.thetaLength);
     for (const t of this.terms) {
@@ -120,7 +119,6 @@ export class ProfiledDeviance {
     this.r = arena.take(q * w);
     this.m = arena.take(w * w);
     this.block = arena.take(Math.max(1, k1 * k1));
-    this.tmpRow = arena.take(Math.max(1, q1));
     this.allScalar = this.terms.every((t) => t.k === 1);
     this.rowTheta2 = new Int32Array(this.q2);
     for (let s = 1; s < this.terms.length; s++) {
@@ -467,20 +465,33 @@ export class ProfiledDeviance {
         }
       }
     }
-    // M = [X y]ᵀ[X y] − RᵀR, then its Cholesky factor holds RX, cβ and the penalised residual r
+    return this.factorFixedBlock();
+  }
+
+  /**
+   * M = [X y]ᵀ[X y] − RᵀR and its Cholesky factor, which holds RX, cβ and the penalised residual r
+   * (the last block of the augmented PLS factorisation; Bates and DebRoy 2004, §2).
+   */
+  private factorFixedBlock(): boolean {
+    const { w, q } = this;
     const M = this.m;
-    const q = this.q;
+    const r = this.r;
+    const xyxy = this.xyxy;
     for (let a = 0; a < w; a++) {
       for (let b = 0; b <= a; b++) {
-        let s = this.xyxy[a * w + b];
-        for (let c = 0; c < q; c++) s -= this.r[c * w + a] * this.r[c * w + b];
-        M[a * w + b] = s;
+        let sum = xyxy[a * w + b];
+        for (let c = 0; c < q; c++) sum -= r[c * w + a] * r[c * w + b];
+        M[a * w + b] = sum;
       }
     }
-    const bad = choleskyInPlace(M, w);
+    return this.choleskyOfFixedBlock();
+  }
+
+  private choleskyOfFixedBlock(): boolean {
+    const bad = choleskyInPlace(this.m, this.w);
     if (bad >= 0) {
       // a zero last pivot means a perfect fit (residual sum of squares 0)
-      this.lastFailure = bad === w - 1 ? 'the model fits the response exactly (zero residual variance)' : 'fixed-effect block not positive definite';
+      this.lastFailure = bad === this.w - 1 ? 'the model fits the response exactly (zero residual variance)' : 'fixed-effect block not positive definite';
       return false;
     }
     this.lastFailure = '';
@@ -512,13 +523,7 @@ export class ProfiledDeviance {
         for (let b = 0; b <= a; b++) M[ma + b] -= ra * r[row + b];
       }
     }
-    const bad = choleskyInPlace(M, w);
-    if (bad >= 0) {
-      this.lastFailure = bad === w - 1 ? 'the model fits the response exactly (zero residual variance)' : 'fixed-effect block not positive definite';
-      return false;
-    }
-    this.lastFailure = '';
-    return true;
+    return this.choleskyOfFixedBlock();
   }
 
   /**
@@ -527,8 +532,8 @@ export class ProfiledDeviance {
    */
   private factorScalarTerms(theta: ArrayLike<number>): boolean {
     const { q1, q2, w } = this;
-    const g1 = this.g1, z2z1 = this.z2z1, z2z2 = this.z2z2, zxy = this.zxy, xyxy = this.xyxy;
-    const l11 = this.l11, l21 = this.l21, l22 = this.l22, r = this.r, M = this.m;
+    const g1 = this.g1, z2z1 = this.z2z1, z2z2 = this.z2z2, zxy = this.zxy;
+    const l11 = this.l11, l21 = this.l21, l22 = this.l22, r = this.r;
     const lam2 = this.lambda2;
     const lam1 = theta[0];
     for (let a = 0; a < q2; a++) lam2[a] = theta[this.rowTheta2[a]];
@@ -564,21 +569,7 @@ export class ProfiledDeviance {
         r[rowA + c] = sum / l22[a * q2 + a];
       }
     }
-    const q = this.q;
-    for (let a = 0; a < w; a++) {
-      for (let b = 0; b <= a; b++) {
-        let sum = xyxy[a * w + b];
-        for (let c = 0; c < q; c++) sum -= r[c * w + a] * r[c * w + b];
-        M[a * w + b] = sum;
-      }
-    }
-    const bad = choleskyInPlace(M, w);
-    if (bad >= 0) {
-      this.lastFailure = bad === w - 1 ? 'the model fits the response exactly (zero residual variance)' : 'fixed-effect block not positive definite';
-      return false;
-    }
-    this.lastFailure = '';
-    return true;
+    return this.factorFixedBlock();
   }
 
   /** log|L|² (twice the sum of log diagonal of the random-effects factor). */

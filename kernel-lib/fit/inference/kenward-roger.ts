@@ -12,7 +12,7 @@
 import type { DesignMatrices } from '../design';
 import type { ProfiledDeviance } from '../profiled-deviance';
 import { varianceParameters, type VarianceParameters } from './variance-parameters';
-import { mixedModelSpace, type MixedModelSpace } from './mixed-model-space';
+import { mixedModelSpace } from './mixed-model-space';
 import { inverseSpd, multiply } from './dense-ops';
 
 /**

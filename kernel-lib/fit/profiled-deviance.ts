@@ -66,6 +66,13 @@ export class ProfiledDeviance {
   /** For rows of the dense block: θ index of the term each row belongs to. */
   private readonly rowTheta2: Int32Array;
   private readonly lambda2: Float64Array;
+  /**
+   * Random intercepts only: for each row a of the dense block, the first-term levels it shares
+   * observations with (nonzero Z2ᵀZ1 entries), as CSR lists. L21 is zero elsewhere, so nested
+   * designs (sites over plots) touch a few entries per row instead of every plot.
+   */
+  private nzStart: Int32Array = new Int32Array(1);
+  private nzCols: Int32Array = new Int32Array(0);
 
   constructor(design: DesignMatrices, reml: boolean) {
     this.design = design;
@@ -128,6 +135,19 @@ export class ProfiledDeviance {
     this.lambda2 = arena.take(this.q2);
     this.buildDesignProducts();
     this.buildResponseProducts();
+    if (this.allScalar) this.indexDenseBlockPattern();
+  }
+
+  private indexDenseBlockPattern(): void {
+    const { q1, q2 } = this;
+    const start = new Int32Array(q2 + 1);
+    const cols: number[] = [];
+    for (let a = 0; a < q2; a++) {
+      for (let l = 0; l < q1; l++) if (this.z2z1[a * q1 + l] !== 0) cols.push(l);
+      start[a + 1] = cols.length;
+    }
+    this.nzStart = start;
+    this.nzCols = Int32Array.from(cols);
   }
 
   /** Replace the response (same design): refresh only the cross-products that involve y. */
@@ -544,17 +564,25 @@ export class ProfiledDeviance {
       const row = l * w;
       for (let c = 0; c < w; c++) r[row + c] = f * zxy[row + c];
     }
+    const nzStart = this.nzStart;
+    const nzCols = this.nzCols;
     for (let a = 0; a < q2; a++) {
       const ra = a * q1;
       const fa = lam2[a] * lam1;
-      for (let l = 0; l < q1; l++) l21[ra + l] = (fa * z2z1[ra + l]) / l11[l];
+      for (let k = nzStart[a]; k < nzStart[a + 1]; k++) {
+        const l = nzCols[k];
+        l21[ra + l] = (fa * z2z1[ra + l]) / l11[l];
+      }
     }
     for (let a = 0; a < q2; a++) {
       const ra = a * q1;
       for (let b = 0; b <= a; b++) {
         const rb = b * q1;
         let sum = lam2[a] * lam2[b] * z2z2[a * q2 + b];
-        for (let l = 0; l < q1; l++) sum -= l21[ra + l] * l21[rb + l];
+        for (let k = nzStart[a]; k < nzStart[a + 1]; k++) {
+          const l = nzCols[k];
+          sum -= l21[ra + l] * l21[rb + l];
+        }
         l22[a * q2 + b] = a === b ? sum + 1 : sum;
       }
     }
@@ -564,7 +592,10 @@ export class ProfiledDeviance {
       const rowA = (q1 + a) * w;
       for (let c = 0; c < w; c++) {
         let sum = lam2[a] * zxy[rowA + c];
-        for (let l = 0; l < q1; l++) sum -= l21[ra + l] * r[l * w + c];
+        for (let k = nzStart[a]; k < nzStart[a + 1]; k++) {
+          const l = nzCols[k];
+          sum -= l21[ra + l] * r[l * w + c];
+        }
         for (let b = 0; b < a; b++) sum -= l22[a * q2 + b] * r[(q1 + b) * w + c];
         r[rowA + c] = sum / l22[a * q2 + a];
       }
@@ -574,11 +605,24 @@ export class ProfiledDeviance {
 
   /** log|L|² (twice the sum of log diagonal of the random-effects factor). */
   logDetL(): number {
+    // diagonal entries of L are ≥ 1: multiply them and take one log per block of products
+    // (far fewer Math.log calls), flushing before the product could overflow
     let s = 0;
+    let prod = 1;
     const { k1, m1, q2 } = this;
-    for (let l = 0; l < m1; l++) for (let a = 0; a < k1; a++) s += Math.log(this.l11[l * k1 * k1 + a * k1 + a]);
-    for (let a = 0; a < q2; a++) s += Math.log(this.l22[a * q2 + a]);
-    return 2 * s;
+    const l11 = this.l11;
+    const l22 = this.l22;
+    for (let l = 0; l < m1; l++) {
+      for (let a = 0; a < k1; a++) {
+        prod *= l11[l * k1 * k1 + a * k1 + a];
+        if (prod > 1e200) { s += Math.log(prod); prod = 1; }
+      }
+    }
+    for (let a = 0; a < q2; a++) {
+      prod *= l22[a * q2 + a];
+      if (prod > 1e200) { s += Math.log(prod); prod = 1; }
+    }
+    return 2 * (s + Math.log(prod));
   }
 
   /** log|RX|² from the last factorisation. */

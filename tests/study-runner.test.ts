@@ -6,6 +6,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { runStudy } from '../kernel-lib/study/run-study';
 import { mergeShards } from '../kernel-lib/study/merge-shards';
 import { parseShard } from '../kernel-lib/study/batch-plan';
+import { fingerprintOf } from '../kernel-lib/study/study-folder';
 
 const ROOT = join(__dirname, '..');
 const fresh = (name: string) => join(mkdtempSync(join(tmpdir(), 'quadrat-study-')), name);
@@ -121,5 +122,21 @@ describe('study validation before anything runs', () => {
   it('refuses an interval method the engine does not provide, naming the variant field', async () => {
     const bad = { ...design, variants: [{ name: 'v', model: { ...design.variants[0].model, interval: 'magic' } }] };
     await expect(runStudy(bad, { out: fresh('bad'), workers: 1 })).rejects.toThrow(/design\.variants\[0\]\.model\.interval/);
+  });
+});
+
+describe('study identity', () => {
+  it('the same design JSON resolved with other defaults (here the interval method) is a different study', () => {
+    const a = fingerprintOf(design, 5, 25, [{ name: 'v', model: { interval: 'satterthwaite' } }]);
+    const b = fingerprintOf(design, 5, 25, [{ name: 'v', model: { interval: 'wald' } }]);
+    expect(a).not.toBe(b);
+    expect(fingerprintOf(design, 5, 25, [{ name: 'v', model: { interval: 'wald' } }])).toBe(b);
+  });
+
+  it('a folder written with different variant settings is refused', async () => {
+    const out = fresh('identity');
+    await runStudy({ ...design, replicates: 5 }, { out, workers: 1 });
+    const changed = { ...design, replicates: 5, variants: design.variants.map((v) => ({ ...v, model: { ...v.model, interval: 'wald' } })) };
+    await expect(runStudy(changed, { out, workers: 1 })).rejects.toThrow(/different study/);
   });
 });

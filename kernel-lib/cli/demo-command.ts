@@ -26,7 +26,7 @@ export async function demoCommand(argv: string[], print: (s: string) => void): P
     return 130;
   }
   print(`\n${result.batchesRun ? `simulated and fitted in ${result.seconds.toFixed(1)} s` : 'results already on disk'}\n`);
-  const key = result.metrics.filter((m) => m.parameter === 'grazing[ungrazed]' || m.parameter === 'sd(site)' || m.parameter === 'sd(year)');
+  const key = result.metrics.filter((m) => m.parameter === 'intercept' || m.parameter === 'grazing[ungrazed]' || m.parameter === 'sd(year)');
   print(formatMetricsTable(key, ['coverage', 'bias', 'rmse', 'width', 'power', 'sdMean', 'sdMedian']));
   const report = join(out, 'report.html');
   writeFileSync(report, await studyReportHtml(readStudyFolder(out), 'Demo study: year random or fixed? (invented survey)'));

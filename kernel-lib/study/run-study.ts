@@ -122,7 +122,7 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
   const scenarios = runner.scenarios.map((s, index) => ({ index, key: s.key, values: s.values }));
   const warnings = [...design.warnings, ...preflight(runner)];
   const manifest: StudyManifest = {
-    format: 'quadrat-study/1', fingerprint: fingerprintOf(source, design.replicates, batchSize), design: source,
+    format: 'quadrat-study/1', fingerprint: fingerprintOf(source, design.replicates, batchSize, design.variants.map((v) => ({ name: v.name, model: v.model }))), design: source,
     replicates: design.replicates, batchSize, scenarios,
   };
   openStudyFolder(options.out, manifest);

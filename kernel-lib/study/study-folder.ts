@@ -22,9 +22,26 @@ export interface StudyManifest {
   scenarios: { index: number; key: string; values: Record<string, number | string> }[];
 }
 
-export function fingerprintOf(design: unknown, replicates: number, batchSize: number): string {
-  return createHash('sha256').update(JSON.stringify({ design, replicates, batchSize })).digest('hex').slice(0, 16);
+/**
+ * Identity of a study: the design as given, the variants with every default filled in (so a
+ * changed default, e.g. the interval method, is a different study), the replicate count, the
+ * batch size and the project version. Resuming is allowed only into a folder with the same identity.
+ */
+export function fingerprintOf(design: unknown, replicates: number, batchSize: number, resolvedVariants: unknown = null): string {
+  return createHash('sha256')
+    .update(JSON.stringify({ design, replicates, batchSize, resolvedVariants, version: PROJECT_VERSION }))
+    .digest('hex')
+    .slice(0, 16);
 }
+
+/** The project's version (package.json), part of a study's identity. */
+export const PROJECT_VERSION: string = (() => {
+  try {
+    return (JSON.parse(readFileSync(join(__dirname, '..', '..', 'package.json'), 'utf8')) as { version: string }).version;
+  } catch {
+    return 'unknown';
+  }
+})();
 
 /** Write text atomically: to a temporary name in the same folder, then rename over the target. */
 export function writeAtomic(path: string, text: string): void {

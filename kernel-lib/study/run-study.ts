@@ -143,8 +143,8 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
   const workers = Math.max(1, Math.min(options.workers ?? availableParallelism(), todo.length || 1));
   let ran = 0;
   const runStarted = Date.now();
-  const finish = (b: Batch, csv: string) => {
-    writeBatch(options.out, b, csv);
+  const finish = (b: Batch, csv: string | null) => {
+    if (csv !== null) writeBatch(options.out, b, csv);
     done += b.to - b.from;
     ran++;
     report();
@@ -157,7 +157,7 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
       await new Promise((resolve) => setImmediate(resolve));
     }
   } else {
-    await runPool(todo, workers, source, options.signal, finish);
+    await runPool(todo, workers, source, options.out, options.signal, (b) => finish(b, null));
   }
   const interrupted = Boolean(options.signal?.aborted) && ran < todo.length;
   const complete = !interrupted && ran === todo.length;
@@ -174,10 +174,10 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
 
 /**
  * Hand batches to a pool of worker threads, two in flight per worker so that a worker never waits
- * for the main thread to write the previous batch; each finished batch is written at once.
+ * for the main thread; each worker writes its finished batches to the folder itself.
  */
 function runPool(
-  todo: Batch[], count: number, source: unknown, signal: AbortSignal | undefined, finish: (b: Batch, csv: string) => void,
+  todo: Batch[], count: number, source: unknown, folder: string, signal: AbortSignal | undefined, finished: (b: Batch) => void,
 ): Promise<void> {
   const IN_FLIGHT = 2;
   return new Promise((resolve, reject) => {
@@ -197,13 +197,13 @@ function runPool(
       }
       const b = todo[next++];
       active++;
-      w.postMessage({ ordinal: b.ordinal, scenario: b.scenario, from: b.from, to: b.to } satisfies BatchTask);
+      w.postMessage({ ordinal: b.ordinal, scenario: b.scenario, batch: b.batch, from: b.from, to: b.to } satisfies BatchTask);
     };
     const byOrdinal = new Map(todo.map((b) => [b.ordinal, b]));
     for (let i = 0; i < count; i++) {
       // a larger young generation: fits allocate many short-lived objects, and the default nursery of a
       // worker thread makes the scavenger run far more often than in the main thread
-      const w = new Worker(path, { workerData: { design: source }, resourceLimits: { maxYoungGenerationSizeMb: 64 } });
+      const w = new Worker(path, { workerData: { design: source, folder }, resourceLimits: { maxYoungGenerationSizeMb: 64 } });
       pool.push(w);
       w.on('message', (reply: BatchReply) => {
         active--;
@@ -211,7 +211,7 @@ function runPool(
           fail(new Error(`batch ${reply.ordinal} failed: ${reply.error}`));
           return;
         }
-        if (!settled) finish(byOrdinal.get(reply.ordinal)!, reply.csv);
+        if (!settled) finished(byOrdinal.get(reply.ordinal)!);
         dispatch(w);
       });
       w.on('error', (e) => fail(e));

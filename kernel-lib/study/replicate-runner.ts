@@ -7,7 +7,7 @@ import type { DesignMatrices } from '../fit/design';
 import { expandGrid, type Scenario } from '../design/grid';
 import { createWorkspace, simulateInto, simulationPlan, type SimulatedData } from '../design/simulate';
 import type { ResolvedVariant, SurveyDesign } from '../design/types';
-import { createStream } from '../random/stream';
+import { streamFamily, type StreamFamily } from '../random/stream';
 import type { ReplicateRow, ReplicateStatus } from './replicate-row';
 
 /** Name of the SD parameter of a random term ("sd(site)", "sd(site:x)") or of the residual ("sd(residual)"). */
@@ -27,6 +27,7 @@ export type RealisedTruthFn = (variant: ResolvedVariant, data: SimulatedData) =>
 export class ReplicateRunner {
   readonly scenarios: Scenario[];
   private readonly workspaces = new Map<number, ReturnType<typeof createWorkspace>>();
+  private readonly families = new Map<number, StreamFamily>();
   /** Alias priority per variant, reused while the design's column names stay the same. */
   private readonly priorities = new Map<ResolvedVariant, { names: string[]; order: number[] }>();
 
@@ -52,7 +53,12 @@ export class ReplicateRunner {
       this.workspaces.set(scenarioIndex, ws);
     }
     // one stream per (study seed, scenario key, replicate): independent of workers, order and shards
-    return simulateInto(ws, createStream(this.design.seed, scenario.key, replicate));
+    let family = this.families.get(scenarioIndex);
+    if (!family) {
+      family = streamFamily(this.design.seed, scenario.key);
+      this.families.set(scenarioIndex, family);
+    }
+    return simulateInto(ws, family.stream(replicate));
   }
 
   private priorityFor(variant: ResolvedVariant, design: DesignMatrices): number[] {

@@ -18,23 +18,9 @@ export const ALIAS_TOLERANCE = 1e-9;
  * Columns are visited in `priority` order and earlier ones win. The caller puts the intercept and
  * the dummies of fixed grouping factors first, so that with site fixed a site-level covariate is
  * the coefficient marked not estimable (the site dummies absorb it), as an analyst expects.
+ * `xtx` is a symmetric cross-product matrix whose leading p×p block is XᵀX (row stride `stride`),
+ * e.g. the engine's [X y]ᵀ[X y], so X is not read again.
  */
-export function detectAliasing(design: DesignMatrices, priority?: number[]): AliasReport {
-  const { n, p, X } = design;
-  const xtx = new Float64Array(p * p);
-  for (let i = 0; i < n; i++) {
-    const r = i * p;
-    for (let a = 0; a < p; a++) {
-      const xa = X[r + a];
-      if (xa === 0) continue;
-      for (let b = 0; b <= a; b++) xtx[a * p + b] += xa * X[r + b];
-    }
-  }
-  for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) xtx[a * p + b] = xtx[b * p + a];
-  return aliasingFromCrossProducts(xtx, p, p, priority);
-}
-
-/** As detectAliasing, from a symmetric cross-product matrix whose leading p×p block is XᵀX (row stride `stride`). */
 export function aliasingFromCrossProducts(xtx: Float64Array, p: number, stride: number, priority?: number[]): AliasReport {
   const scale = new Float64Array(p);
   for (let a = 0; a < p; a++) scale[a] = xtx[a * stride + a] > 0 ? 1 / Math.sqrt(xtx[a * stride + a]) : 0;
@@ -42,10 +28,10 @@ export function aliasingFromCrossProducts(xtx: Float64Array, p: number, stride: 
   const estimable: number[] = [];
   const aliased: number[] = [];
   const visit = priority ?? Array.from({ length: p }, (_, j) => j);
+  const row = new Float64Array(p);
   for (const j of visit) {
     if (scale[j] === 0) { aliased.push(j); continue; }
     // row j of the factor against the estimable columns found so far
-    const row = new Float64Array(estimable.length);
     let d = 1;
     for (let e = 0; e < estimable.length; e++) {
       const c = estimable[e];

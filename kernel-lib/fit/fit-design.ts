@@ -43,6 +43,10 @@ export interface FitOptions {
  */
 export function fitDesign(design: DesignMatrices, options: FitOptions = {}): FitResult {
   const level = options.level ?? 0.95;
+  const requested = options.interval ?? 'wald';
+  if (!(INTERVAL_METHODS as readonly string[]).includes(requested)) {
+    throw new RangeError(`interval method "${requested}" is not available; choose one of: ${INTERVAL_METHODS.join(', ')}`);
+  }
   const warnings = [...design.warnings];
   const ols = design.random.length === 0;
   const estimation = ols ? 'OLS' : options.estimation ?? 'REML';
@@ -89,10 +93,6 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
   for (let a = 0; a < p; a++) {
     for (let b = 0; b < p; b++) fixedCov[alias.estimable[a] * fullP + alias.estimable[b]] = sigma2 * unscaled[a * p + b];
   }
-  const requested = options.interval ?? 'wald';
-  if (!(INTERVAL_METHODS as readonly string[]).includes(requested)) {
-    throw new RangeError(`interval method "${requested}" is not available; choose one of: ${INTERVAL_METHODS.join(', ')}`);
-  }
   const method: IntervalMethod = ols ? 'residual-t' : requested;
   // residual-t: exact for OLS (any regression text); for mixed models the simple small-sample correction
   const df = method === 'residual-t' ? n - p : Infinity;
@@ -126,9 +126,8 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
   const random: VarianceComponentRow[] = [];
   const correlations: CorrelationRow[] = [];
   let singular = false;
-  const layoutOf = new Map(dev.terms.map((t, s) => [t.term, s]));
   for (const term of design.random) {
-    const s = layoutOf.get(term)!;
+    const s = dev.termIndex.get(term)!;
     const t = dev.terms[s];
     const T = dev.templates[s];
     const k = t.k;
@@ -212,9 +211,8 @@ function linearPredictor(design: DesignMatrices, beta: Float64Array): Float64Arr
 function conditionalModes(dev: ProfiledDeviance, b: Float64Array, sigma2: number, design: DesignMatrices): ConditionalModeRow[] {
   const blocks = dev.inverseDiagonalBlocks();
   const rows: ConditionalModeRow[] = [];
-  const layoutOf = new Map(dev.terms.map((t, s) => [t.term, s]));
   for (const term of design.random) {
-    const s = layoutOf.get(term)!;
+    const s = dev.termIndex.get(term)!;
     const t = dev.terms[s];
     const T = dev.templates[s];
     const k = t.k;

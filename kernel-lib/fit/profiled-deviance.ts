@@ -1,5 +1,5 @@
 import type { DesignMatrices, RandomTerm } from './design';
-import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace } from '../numeric/dense';
+import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace, logDiagonalSum } from '../numeric/dense';
 import { Float64Arena } from '../numeric/arena';
 
 /**
@@ -34,6 +34,8 @@ export class ProfiledDeviance {
   /** Width of the augmented [X y] block. */
   readonly w: number;
   readonly terms: TermLayout[];
+  /** Position in `terms` (the engine's order) of each of the design's random terms. */
+  readonly termIndex: Map<RandomTerm, number>;
   readonly q: number;
   readonly q1: number;
   readonly q2: number;
@@ -95,6 +97,7 @@ export class ProfiledDeviance {
     });
     this.q = start;
     this.thetaLength = thetaStart;
+    this.termIndex = new Map(this.terms.map((t, s) => [t.term, s]));
     this.k1 = this.terms.length ? this.terms[0].k : 0;
     this.m1 = this.terms.length ? this.terms[0].m : 0;
     this.q1 = this.k1 * this.m1;
@@ -627,9 +630,7 @@ export class ProfiledDeviance {
 
   /** log|RX|² from the last factorisation. */
   logDetRX(): number {
-    let s = 0;
-    for (let a = 0; a < this.p; a++) s += Math.log(this.m[a * this.w + a]);
-    return 2 * s;
+    return 2 * logDiagonalSum(this.m, this.p, this.w);
   }
 
   /** Penalised residual sum of squares r² from the last factorisation. */
@@ -663,11 +664,12 @@ export class ProfiledDeviance {
     return out;
   }
 
-  /** (RXᵀRX)⁻¹ (p×p), to be scaled by σ² for the fixed-effect covariance. */
-  unscaledFixedCovariance(): Float64Array {
+  /**
+   * (RXᵀRX)⁻¹ (p×p), to be scaled by σ² for the fixed-effect covariance. Callers that repeat this
+   * (finite differences) pass their own `out` (p×p) and `col` (p) buffers.
+   */
+  unscaledFixedCovariance(out: Float64Array = new Float64Array(this.p * this.p), col: Float64Array = new Float64Array(this.p)): Float64Array {
     const { p, w } = this;
-    const out = new Float64Array(p * p);
-    const col = new Float64Array(p);
     for (let j = 0; j < p; j++) {
       col.fill(0);
       col[j] = 1;
@@ -723,7 +725,7 @@ export class ProfiledDeviance {
     if (!terms.length) return out;
     // W11 per level
     const w11 = new Float64Array(m1 * k1 * k1);
-    const col = new Float64Array(Math.max(k1, q2, 1));
+    const col = new Float64Array(k1);
     for (let l = 0; l < m1; l++) {
       for (let j = 0; j < k1; j++) {
         col.fill(0, 0, k1);
@@ -787,7 +789,6 @@ export class ProfiledDeviance {
         }
       }
     }
-    void col;
     return out;
   }
 }

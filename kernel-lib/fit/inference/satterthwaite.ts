@@ -16,7 +16,6 @@
  * Richardson extrapolation: Burden and Faires, Numerical Analysis, 9th ed. 2011, §4.2).
  */
 import type { ProfiledDeviance } from '../profiled-deviance';
-import { backSolveTransposeInPlace, forwardSolveInPlace } from '../../numeric/dense';
 import { thetaFromPsi, unprofiledDeviance, varianceParameters, type VarianceParameters } from './variance-parameters';
 import { inverseSpd, quadraticForm } from './dense-ops';
 
@@ -38,18 +37,6 @@ export interface SatterthwaiteCore {
 /** Steps (in units of h) and weights of the five-point first-derivative stencil. */
 const STENCIL: [number, number][] = [[2, -1], [1, 8], [-1, -8], [-2, 1]];
 const CORNERS: [number, number][] = [[1, 1], [1, -1], [-1, 1], [-1, -1]];
-
-/** (RXᵀRX)⁻¹ from the engine's last factorisation, written into `out` (p×p). */
-export function unscaledCovarianceInto(dev: ProfiledDeviance, out: Float64Array, col: Float64Array): void {
-  const { p, w } = dev;
-  for (let j = 0; j < p; j++) {
-    col.fill(0);
-    col[j] = 1;
-    forwardSolveInPlace(dev.m, p, col, w);
-    backSolveTransposeInPlace(dev.m, p, col, w);
-    for (let i = 0; i < p; i++) out[i * p + j] = col[i];
-  }
-}
 
 /** Finite-difference step for ψ entry r: relative to the variance, or to √(Σaa Σbb) for a covariance. */
 function stepFor(params: VarianceParameters, r: number): number {
@@ -84,7 +71,7 @@ export function satterthwaiteCore(dev: ProfiledDeviance, thetaHat: ArrayLike<num
   const scratch = new Float64Array(pp);
   // add weight·Φ at the current ψ to `into` (call right after criterion(), which factored at that point)
   const addPhi = (into: Float64Array, weight: number): void => {
-    unscaledCovarianceInto(dev, scratch, col);
+    dev.unscaledFixedCovariance(scratch, col);
     const w = weight * psi[psi.length - 1];
     for (let k = 0; k < pp; k++) into[k] += w * scratch[k];
   };

@@ -35,7 +35,7 @@ export { createStream } from './random/stream';
 export type { Stream } from './random/stream';
 
 // Studies
-export { runStudy, DEFAULT_BATCH_SIZE } from './study/run-study';
+export { runStudy, studyFingerprint, DEFAULT_BATCH_SIZE } from './study/run-study';
 export type { RunStudyOptions, RunStudyResult, StudyProgress } from './study/run-study';
 export { ReplicateRunner } from './study/replicate-runner';
 export { summarise } from './study/metrics';

@@ -247,13 +247,14 @@ describe('notebook helpers', () => {
     expect(rows).toEqual([{ 'year levels': 3, variant: 'year random', coverage: '0.943 (0.007)', power: '' }]);
   });
 
-  it('studyFolderName is a stable name that changes with the settings', () => {
-    const design = { seed: 1, grid: { perCell: [1, 2] } };
+  it('studyFolderName is a stable name that changes with the settings, taken from the fingerprint runStudy checks', () => {
+    const design = JSON.parse(fs.readFileSync(path.join(ROOT, 'data', 'demo-study.json'), 'utf8'));
     const name = q.studyFolderName(design, 100);
     expect(name).toMatch(/^study-[0-9a-f]{10}$/);
     expect(q.studyFolderName(JSON.parse(JSON.stringify(design)), 100)).toBe(name);
     expect(q.studyFolderName(design, 1000)).not.toBe(name);
     expect(q.studyFolderName({ ...design, seed: 2 }, 100)).not.toBe(name);
+    expect(name).toBe(`study-${q.studyFingerprint(design, { replicates: 100 }).slice(0, 10)}`);
   });
 
   it('studyProgressLines says when everything was on disk, and counts a fresh run', () => {

@@ -3,7 +3,7 @@ import { mkdtempSync, readFileSync, readdirSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { spawn, spawnSync } from 'node:child_process';
-import { runStudy } from '../kernel-lib/study/run-study';
+import { runStudy, studyFingerprint } from '../kernel-lib/study/run-study';
 import { mergeShards } from '../kernel-lib/study/merge-shards';
 import { parseShard } from '../kernel-lib/study/batch-plan';
 import { fingerprintOf } from '../kernel-lib/study/study-folder';
@@ -136,6 +136,8 @@ describe('study identity', () => {
   it('a folder written with different variant settings is refused', async () => {
     const out = fresh('identity');
     await runStudy({ ...design, replicates: 5 }, { out, workers: 1 });
+    const manifest = JSON.parse(readFileSync(join(out, 'study.json'), 'utf8'));
+    expect(manifest.fingerprint).toBe(studyFingerprint({ ...design, replicates: 5 }));
     const changed = { ...design, replicates: 5, variants: design.variants.map((v) => ({ ...v, model: { ...v.model, interval: 'wald' } })) };
     await expect(runStudy(changed, { out, workers: 1 })).rejects.toThrow(/different study/);
   });

@@ -2,7 +2,8 @@ import { mkdirSync, writeFileSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { parseArgs } from 'node:util';
 import { readFileSync } from 'node:fs';
-import { readStudyFolder, studyReportHtml } from '../display/study-report';
+import { studyReportHtml } from '../display/study-report';
+import { readManifest } from '../study/study-folder';
 import { formatMetricsTable } from './metrics-table';
 import { runStudyWithProgress } from './study-command';
 
@@ -29,7 +30,9 @@ export async function demoCommand(argv: string[], print: (s: string) => void): P
   const key = result.metrics.filter((m) => m.parameter === 'intercept' || m.parameter === 'grazing[ungrazed]' || m.parameter === 'sd(year)');
   print(formatMetricsTable(key, ['coverage', 'bias', 'rmse', 'width', 'power', 'sdMean', 'sdMedian']));
   const report = join(out, 'report.html');
-  writeFileSync(report, await studyReportHtml(readStudyFolder(out), 'Demo study: year random or fixed? (invented survey)'));
+  // the rows are already in memory: no need to read replicates.csv back
+  const results = { manifest: readManifest(out), metrics: result.metrics, replicates: result.replicates! };
+  writeFileSync(report, await studyReportHtml(results, 'Demo study: year random or fixed? (invented survey)'));
   print(`\nAll metrics: ${relative(process.cwd(), join(out, 'metrics.csv')) || out}; per-replicate results: replicates.csv`);
   print(`HTML summary with charts: ${relative(process.cwd(), report)}`);
   print('Results hold only for the simulated assumptions; defer to a qualified statistician and local survey protocols.');

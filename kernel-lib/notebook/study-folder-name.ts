@@ -1,8 +1,10 @@
-/** A study folder name derived from the study's settings, so that changed settings start a new folder and unchanged ones resume. */
-import { createHash } from 'node:crypto';
+/** A study folder name derived from the study's identity, so that changed settings start a new folder and unchanged ones resume. */
+import { studyFingerprint } from '../study/run-study';
 
-/** "study-" and 10 hex digits of SHA-256 over the design JSON and the replicate count. */
+/**
+ * "study-" and 10 hex digits of the fingerprint runStudy checks when resuming (design, replicate
+ * count, variants with defaults filled in, project version): a folder of this name is never refused.
+ */
 export function studyFolderName(design: unknown, replicates: number): string {
-  const hash = createHash('sha256').update(JSON.stringify({ design, replicates })).digest('hex');
-  return `study-${hash.slice(0, 10)}`;
+  return `study-${studyFingerprint(design, { replicates }).slice(0, 10)}`;
 }

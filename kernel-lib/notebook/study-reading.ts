@@ -6,7 +6,7 @@
  */
 import type { MetricRow } from '../study/metrics';
 import type { StudyManifest } from '../study/study-folder';
-import { scenarioFieldName } from '../study/scenario-fields';
+import { coverageShortfallLimit as shortfallLimit, scenarioLabels } from '../study/reading';
 import { parseModel } from '../model/parse';
 import type { ModelSpec } from '../model/types';
 import type { SurveyDesignSpec, VariantSpec } from '../design/types';
@@ -31,16 +31,6 @@ export function withIntervalVariants(design: SurveyDesignSpec, method: string): 
   return { ...design, variants: [...base, ...extra] };
 }
 
-function shortfallLimit(level: number, n: number): number {
-  return level - 2 * Math.sqrt((level * (1 - level)) / n);
-}
-
-function scenarioLabel(scenarios: StudyManifest['scenarios']): Map<string, string> {
-  return new Map(
-    scenarios.map((s) => [s.key, Object.entries(s.values).map(([p, v]) => `${scenarioFieldName(p)} = ${v}`).join(', ') || 'the design']),
-  );
-}
-
 export interface CoverageVerdictRow {
   variant: string;
   /** Scenario × parameter cells whose coverage is within 2 MCSE of the level or above it, "k of m". */
@@ -63,7 +53,7 @@ export function coverageVerdicts(
   options: { parameters?: readonly string[]; level?: number } = {},
 ): CoverageVerdictRow[] {
   const level = options.level ?? 0.95;
-  const labels = scenarioLabel(scenarios);
+  const labels = scenarioLabels(scenarios);
   const rows = coverageRows(metrics, options.parameters);
   const variants = [...new Set(rows.map((m) => m.variant))];
   return variants.map((variant) => {

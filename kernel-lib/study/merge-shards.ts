@@ -35,6 +35,6 @@ export function mergeShards(folders: string[], out: string): { batches: number; 
       { field: 'folders' },
     );
   }
-  const metrics = finalise(out, all)!;
+  const { metrics } = finalise(out, all)!;
   return { batches: all.length, metrics };
 }

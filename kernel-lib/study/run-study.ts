@@ -11,6 +11,7 @@ import type { BatchReply, BatchTask } from './batch-worker';
 import { summarise, type MetricRow } from './metrics';
 import { realisedTruthOf } from './realised-truth';
 import { parseReplicateCsv, replicateRowsToCsv } from './replicate-csv';
+import type { ReplicateRow } from './replicate-row';
 import { ReplicateRunner } from './replicate-runner';
 import {
   assembleReplicates, finishedBatches, fingerprintOf, openStudyFolder, writeAtomic, writeBatch, type StudyManifest,
@@ -57,6 +58,8 @@ export interface RunStudyResult {
   warnings: string[];
   /** Summary metrics, when the whole study (not a shard) is complete. */
   metrics: MetricRow[] | null;
+  /** The per-replicate rows behind the metrics (as written to replicates.csv), when the metrics are there. */
+  replicates: ReplicateRow[] | null;
   /** Seconds spent simulating and fitting (batches), and assembling replicates.csv and the metrics. */
   timings: { runSeconds: number; finaliseSeconds: number };
 }
@@ -112,6 +115,16 @@ export function preflight(runner: ReplicateRunner, tries = 5): string[] {
   return [...new Set(warnings)];
 }
 
+/** The identity runStudy gives a study folder: resuming is allowed only into a folder with the same one. */
+export function studyFingerprint(input: unknown, options: { replicates?: number; batchSize?: number } = {}): string {
+  const { design, source } = resolveStudyDesign(input, options.replicates);
+  return fingerprintOfResolved(design, source, options.batchSize ?? DEFAULT_BATCH_SIZE);
+}
+
+function fingerprintOfResolved(design: SurveyDesign, source: unknown, batchSize: number): string {
+  return fingerprintOf(source, design.replicates, batchSize, design.variants.map((v) => ({ name: v.name, model: v.model })));
+}
+
 export async function runStudy(input: unknown, options: RunStudyOptions): Promise<RunStudyResult> {
   const started = Date.now();
   const { design, source } = resolveStudyDesign(input, options.replicates);
@@ -122,7 +135,7 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
   const scenarios = runner.scenarios.map((s, index) => ({ index, key: s.key, values: s.values }));
   const warnings = [...design.warnings, ...preflight(runner)];
   const manifest: StudyManifest = {
-    format: 'quadrat-study/1', fingerprint: fingerprintOf(source, design.replicates, batchSize, design.variants.map((v) => ({ name: v.name, model: v.model }))), design: source,
+    format: 'quadrat-study/1', fingerprint: fingerprintOfResolved(design, source, batchSize), design: source,
     replicates: design.replicates, batchSize, scenarios,
   };
   openStudyFolder(options.out, manifest);
@@ -163,11 +176,10 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
   const complete = !interrupted && ran === todo.length;
   const runSeconds = (Date.now() - runStarted) / 1000;
   const finaliseStarted = Date.now();
-  let metrics: MetricRow[] | null = null;
-  if (complete && !options.shard) metrics = finalise(options.out, all);
+  const summary = complete && !options.shard ? finalise(options.out, all) : null;
   return {
     folder: options.out, scenarios, batchesRun: ran, batchesSkipped: mine.length - todo.length, complete, interrupted,
-    seconds: (Date.now() - started) / 1000, warnings, metrics,
+    seconds: (Date.now() - started) / 1000, warnings, metrics: summary?.metrics ?? null, replicates: summary?.rows ?? null,
     timings: { runSeconds, finaliseSeconds: (Date.now() - finaliseStarted) / 1000 },
   };
 }
@@ -222,13 +234,13 @@ function runPool(
 }
 
 /** Write replicates.csv and the metrics once every batch is on disk. */
-export function finalise(folder: string, batches: Batch[]): MetricRow[] | null {
+export function finalise(folder: string, batches: Batch[]): { metrics: MetricRow[]; rows: ReplicateRow[] } | null {
   if (!assembleReplicates(folder, batches)) return null;
   const rows = parseReplicateCsv(readFileSync(join(folder, 'replicates.csv'), 'utf8'), 'replicates.csv');
   const metrics = summarise(rows);
   writeAtomic(join(folder, 'metrics.json'), JSON.stringify(metrics, null, 1));
   writeFileSync(join(folder, 'metrics.csv'), metricsToCsv(metrics));
-  return metrics;
+  return { metrics, rows };
 }
 
 function metricsToCsv(metrics: MetricRow[]): string {

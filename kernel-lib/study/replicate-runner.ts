@@ -31,7 +31,11 @@ export class ReplicateRunner {
   /** Alias priority per variant, reused while the design's column names stay the same. */
   private readonly priorities = new Map<ResolvedVariant, { names: string[]; order: number[] }>();
 
+  /** Interval method of each variant, checked once: an unknown method is refused before anything runs. */
+  private readonly intervals = new Map<string, IntervalMethod>();
+
   constructor(readonly design: SurveyDesign, private readonly realisedTruth?: RealisedTruthFn) {
+    design.variants.forEach((v, i) => this.intervals.set(v.name, checkInterval(v.model.interval, `design.variants[${i}].model.interval`)));
     this.scenarios = expandGrid(design);
   }
 
@@ -80,7 +84,7 @@ export class ReplicateRunner {
         fit = fitDesign(design, {
           estimation: variant.model.estimation,
           level: variant.model.level,
-          interval: intervalOf(variant),
+          interval: this.intervals.get(variant.name)!,
           aliasPriority: this.priorityFor(variant, design),
           modes: false,
           fitted: false,
@@ -94,10 +98,6 @@ export class ReplicateRunner {
       pushRows(rows, scenario, replicate, variant, fit, reason, realised);
     }
   }
-}
-
-function intervalOf(variant: ResolvedVariant): IntervalMethod {
-  return checkInterval(variant.model.interval, `variant "${variant.name}" model.interval`);
 }
 
 function fitStatus(fit: FitResult | null, reason: string): ReplicateStatus {

@@ -41,6 +41,17 @@ export interface SurveySummary {
   responseMissing: number;
 }
 
+/** Label of `factor` in row i with its outer factors' labels in front ("ashpool/2"); null when any is missing. */
+export function nestedLabel(data: Columns, factor: string, i: number, within: Readonly<Record<string, string>>, depth = 0): string | null {
+  const v = data[factor][i];
+  if (isMissing(v)) return null;
+  const outer = within[factor];
+  // depth guard: a cycle in `within` would otherwise recurse forever
+  if (!outer || !(outer in data) || depth > 8) return String(v);
+  const o = nestedLabel(data, outer, i, within, depth + 1);
+  return o === null ? null : `${o}/${String(v)}`;
+}
+
 function median(values: number[]): number {
   const s = [...values].sort((x, y) => x - y);
   const m = s.length >> 1;
@@ -60,17 +71,9 @@ export function describeSurvey(data: Columns, factors: string[], response?: stri
     if (!(f in data)) throw new QuadratInputError(`column "${f}" not found; columns: ${listNames(names)}`, { column: f });
   }
   if (!factors.length) throw new QuadratInputError('describeSurvey: name at least one grouping factor', { field: 'factors' });
-  const labelOf = (f: string, i: number, depth = 0): string | null => {
-    const v = data[f][i];
-    if (isMissing(v)) return null;
-    const outer = within[f];
-    if (!outer || depth > 8 || !(outer in data)) return String(v);
-    const o = labelOf(outer, i, depth + 1);
-    return o === null ? null : `${o}/${String(v)}`;
-  };
   const labels = factors.map((f) => {
     const out: (string | null)[] = new Array(n);
-    for (let i = 0; i < n; i++) out[i] = labelOf(f, i);
+    for (let i = 0; i < n; i++) out[i] = nestedLabel(data, f, i, within);
     return out;
   });
   const summaries: FactorSummary[] = factors.map((factor, j) => {

@@ -35,8 +35,13 @@ export async function studyChartSections(results: StudyResults, options: { param
   const x = fields[0];
   const facet = fields[1];
   const metrics = withScenarioFields(results.metrics, manifest.scenarios);
-  const fixedParams = options.parameters ?? [...new Set(results.metrics.filter((m) => m.kind === 'fixed' && m.metric === 'coverage').map((m) => m.parameter))]
-    .filter((p) => results.metrics.filter((m) => m.parameter === p && m.metric === 'coverage').length === new Set(results.metrics.map((m) => `${m.scenario}\u0000${m.variant}`)).size);
+  // chart the fixed effects that every scenario × variant estimates (a year[...] dummy exists only in some)
+  const cells = new Set(results.metrics.map((m) => `${m.scenario}\u0000${m.variant}`)).size;
+  const coverageCount = new Map<string, number>();
+  for (const m of results.metrics) {
+    if (m.kind === 'fixed' && m.metric === 'coverage') coverageCount.set(m.parameter, (coverageCount.get(m.parameter) ?? 0) + 1);
+  }
+  const fixedParams = options.parameters ?? [...coverageCount].filter(([, count]) => count === cells).map(([p]) => p);
   const sections: ReportSection[] = [];
   if (!x) {
     sections.push({ heading: 'Metrics', html: htmlTable(results.metrics.filter((m) => ['coverage', 'bias', 'rmse', 'power'].includes(m.metric)), { mcse: true }) });

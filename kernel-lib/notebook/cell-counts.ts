@@ -2,7 +2,7 @@
 import { columnLength, type Columns } from '../data/columns';
 import { isMissing } from '../data/missing';
 import type { TopLevelSpec } from 'vega-lite';
-import { nestedLabel } from './survey-columns';
+import { nestedLabel } from '../data/describe-survey';
 
 export interface CellCountRow {
   [factor: string]: string | number;

@@ -2,6 +2,7 @@
 import { columnLength, type Columns } from '../data/columns';
 import { isMissing } from '../data/missing';
 import { QuadratInputError, listNames } from '../model/errors';
+import { nestedLabel } from '../data/describe-survey';
 
 export interface ColumnOverviewRow {
   column: string;
@@ -103,17 +104,6 @@ export function checkSurveyColumns(data: Columns, columns: SurveyColumns): void 
     for (let i = 0; i < n && !present; i++) present = !isMissing(data[f][i]);
     if (!present) throw new QuadratInputError(`column "${f}" (a grouping factor) has no values`, { column: f });
   }
-}
-
-/** Label of `factor` in row i with its outer factors' labels in front ("ashpool/2"); null when any is missing. */
-export function nestedLabel(data: Columns, factor: string, i: number, within: Readonly<Record<string, string>>, depth = 0): string | null {
-  const v = data[factor][i];
-  if (isMissing(v)) return null;
-  const outer = within[factor];
-  // depth guard: a cycle in `within` would otherwise recurse forever
-  if (!outer || !(outer in data) || depth > 8) return String(v);
-  const o = nestedLabel(data, outer, i, within, depth + 1);
-  return o === null ? null : `${o}/${String(v)}`;
 }
 
 /**

@@ -71,19 +71,10 @@ export function designFromSurvey(data: SurveyData, model: ModelSpec | ResolvedMo
   const notes: string[] = [];
 
   const factors: FactorSpec[] = resolved.groups.map((g) => {
-    const s = summary.factors.find((f) => f.factor === g.factor)!;
-    if (g.within) {
-      const outer = summary.factors.find((f) => f.factor === g.within);
-      const per = outer ? Math.max(1, Math.round(s.levels / outer.levels)) : s.levels;
-      return { name: g.factor, levels: per, within: g.within };
-    }
-    return { name: g.factor, levels: s.levels };
-  });
-  // nested factors given with labels repeated under each outer level: count levels per outer level
-  for (const f of factors) {
-    if (!f.within) continue;
-    const inner = columns[f.name];
-    const outer = columns[f.within];
+    if (!g.within) return { name: g.factor, levels: summary.factors.find((f) => f.factor === g.factor)!.levels };
+    // a nested factor's design levels are per outer level: the mean count of own labels under each outer label
+    const inner = columns[g.factor];
+    const outer = columns[g.within];
     const perOuter = new Map<string, Set<string>>();
     for (let i = 0; i < inner.length; i++) {
       if (isMissing(inner[i]) || isMissing(outer[i])) continue;
@@ -91,9 +82,9 @@ export function designFromSurvey(data: SurveyData, model: ModelSpec | ResolvedMo
       if (!perOuter.has(o)) perOuter.set(o, new Set());
       perOuter.get(o)!.add(String(inner[i]));
     }
-    const sizes = [...perOuter.values()].map((s) => s.size);
-    f.levels = Math.max(1, Math.round(mean(sizes)));
-  }
+    const sizes = [...perOuter.values()].map((set) => set.size);
+    return { name: g.factor, levels: Math.max(1, Math.round(mean(sizes))), within: g.within };
+  });
   const cells = factors.reduce((prod, f) => prod * f.levels, 1);
   const perCell = Math.max(1, Math.round((summary.perCellMin + summary.perCellMax) / 2));
   const usedRows = fit.observations;

@@ -1,4 +1,4 @@
-import { readFileSync } from 'node:fs';
+import { readJsonFile } from './read-json-file';
 import { parseArgs } from 'node:util';
 import { readCsvFile } from '../data/csv';
 import { fitModel } from '../fit/fit-model';
@@ -24,18 +24,11 @@ export function fitCommand(argv: string[], print: (s: string) => void): number {
   if (!values.data) throw new QuadratInputError(`--data is required: ${FIT_USAGE}`, { field: '--data' });
   if (!values.model) throw new QuadratInputError(`--model is required: ${FIT_USAGE}`, { field: '--model' });
   const data = readCsvFile(values.data);
-  let modelText: string;
-  try {
-    modelText = readFileSync(values.model, 'utf8');
-  } catch {
-    throw new QuadratInputError(`--model: cannot read file "${values.model}"`, { field: '--model' });
+  const parsed = readJsonFile(values.model, '--model');
+  if (parsed === null || typeof parsed !== 'object' || Array.isArray(parsed)) {
+    throw new QuadratInputError(`--model: "${values.model}" must hold one JSON object (a model description)`, { field: '--model' });
   }
-  let raw: Record<string, unknown>;
-  try {
-    raw = JSON.parse(modelText);
-  } catch (e) {
-    throw new QuadratInputError(`--model: "${values.model}" is not valid JSON (${(e as Error).message})`, { field: '--model' });
-  }
+  let raw = parsed as Record<string, unknown>;
   if (values.ci) raw = { ...raw, interval: values.ci };
   if (values.level !== undefined) {
     const level = Number(values.level);

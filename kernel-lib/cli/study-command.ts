@@ -1,4 +1,5 @@
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { readJsonFile } from './read-json-file';
 import { readStudyFolder, studyReportHtml } from '../display/study-report';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
@@ -22,20 +23,6 @@ function intOption(value: string | undefined, name: string, min: number): number
   const v = Number(value);
   if (!Number.isInteger(v) || v < min) throw new QuadratInputError(`${name}: expected a whole number ≥ ${min}, got "${value}"`, { field: name });
   return v;
-}
-
-function readJsonFile(path: string, field: string): unknown {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch {
-    throw new QuadratInputError(`${field}: cannot read file "${path}"`, { field });
-  }
-  try {
-    return JSON.parse(text);
-  } catch (e) {
-    throw new QuadratInputError(`${field}: "${path}" is not valid JSON (${(e as Error).message})`, { field });
-  }
 }
 
 /** Run a study with a progress bar; Ctrl-C stops after saving finished batches. */

@@ -407,7 +407,6 @@ export class ProfiledDeviance {
     this.setTheta(theta);
     const { q1, q2, k1, m1, w, terms } = this;
     const nTerms = terms.length;
-    if (nTerms === 1 && k1 === 1) return this.factorSingleIntercept(theta[0]);
     if (this.allScalar) return this.factorScalarTerms(theta);
     if (nTerms) {
       // L11: per level, T1ᵀ G T1 + I
@@ -519,34 +518,6 @@ export class ProfiledDeviance {
     }
     this.lastFailure = '';
     return true;
-  }
-
-  /**
-   * One scalar random effect per level (a random intercept, or a lone slope): L is diagonal,
-   * Lₗ² = θ²gₗ + 1, and M = [X y]ᵀ[X y] − Σₗ (θ²/Lₗ²) sₗsₗᵀ with sₗ the level's Zᵀ[X y] row.
-   */
-  private factorSingleIntercept(theta: number): boolean {
-    const { m1, w } = this;
-    const g1 = this.g1;
-    const zxy = this.zxy;
-    const l11 = this.l11;
-    const r = this.r;
-    const M = this.m;
-    M.set(this.xyxy);
-    const t2 = theta * theta;
-    for (let l = 0; l < m1; l++) {
-      const ll = Math.sqrt(t2 * g1[l] + 1);
-      l11[l] = ll;
-      const f = theta / ll;
-      const row = l * w;
-      for (let a = 0; a < w; a++) r[row + a] = f * zxy[row + a];
-      for (let a = 0; a < w; a++) {
-        const ra = r[row + a];
-        const ma = a * w;
-        for (let b = 0; b <= a; b++) M[ma + b] -= ra * r[row + b];
-      }
-    }
-    return this.choleskyOfFixedBlock();
   }
 
   /**

@@ -65,9 +65,10 @@ export function nelderMeadBounded(
   const xr = new Float64Array(d);
   const xe = new Float64Array(d);
   const xc = new Float64Array(d);
+  const byValue = (a: number, b: number) => vals[a] - vals[b];
   const sortSimplex = () => {
     for (let i = 0; i <= d; i++) order[i] = i;
-    order.sort((a, b) => vals[a] - vals[b]);
+    order.sort(byValue);
   };
   const along = (out: Float64Array, t: number, worst: Float64Array) => {
     for (let j = 0; j < d; j++) out[j] = centroid[j] + t * (worst[j] - centroid[j]);

@@ -1,4 +1,4 @@
-import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, writeFileSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
@@ -232,8 +232,9 @@ function runPool(
 
 /** Write replicates.csv and the metrics once every batch is on disk. */
 export function finalise(folder: string, batches: Batch[]): { metrics: MetricRow[]; rows: ReplicateRow[] } | null {
-  if (!assembleReplicates(folder, batches)) return null;
-  const rows = parseReplicateCsv(readFileSync(join(folder, 'replicates.csv'), 'utf8'), 'replicates.csv');
+  const text = assembleReplicates(folder, batches);
+  if (text === null) return null;
+  const rows = parseReplicateCsv(text, 'replicates.csv');
   const metrics = summarise(rows);
   writeAtomic(join(folder, 'metrics.json'), JSON.stringify(metrics, null, 1));
   writeFileSync(join(folder, 'metrics.csv'), metricsToCsv(metrics));

@@ -88,12 +88,16 @@ export function writeBatch(folder: string, batch: Pick<Batch, 'scenario' | 'batc
   writeAtomic(join(folder, 'batches', batchFileName(batch)), csv);
 }
 
-/** Concatenate all batches in study order into replicates.csv; returns false when some are missing. */
-export function assembleReplicates(folder: string, batches: readonly Batch[]): boolean {
+/**
+ * Concatenate all batches in study order into replicates.csv; returns its text (so the caller need
+ * not read it back), or null when some batches are missing.
+ */
+export function assembleReplicates(folder: string, batches: readonly Batch[]): string | null {
   const done = finishedBatches(folder);
-  if (!batches.every((b) => done.has(batchFileName(b)))) return false;
+  if (!batches.every((b) => done.has(batchFileName(b)))) return null;
   const parts = [`${REPLICATE_HEADER}\n`];
   for (const b of batches) parts.push(readFileSync(join(folder, 'batches', batchFileName(b)), 'utf8'));
-  writeAtomic(join(folder, 'replicates.csv'), parts.join(''));
-  return true;
+  const text = parts.join('');
+  writeAtomic(join(folder, 'replicates.csv'), text);
+  return text;
 }

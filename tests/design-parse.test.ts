@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { QuadratInputError } from '../kernel-lib/model/errors';
 import { levelLabels } from '../kernel-lib/design/factors';
 import { parseDesign } from '../kernel-lib/design/parse';
 import { semidefiniteCholesky } from '../kernel-lib/design/truth';
+import { inputError } from './helpers/input-error';
 
 /** The example survey of the design contract (invented: six sites, three years, four plots per site). */
 function example(): any {
@@ -35,16 +35,6 @@ function example(): any {
   };
 }
 
-/** The message of the QuadratInputError thrown by `fn` (fails the test if none is thrown). */
-function errorOf(fn: () => unknown): QuadratInputError {
-  try {
-    fn();
-  } catch (e) {
-    expect(e).toBeInstanceOf(QuadratInputError);
-    return e as QuadratInputError;
-  }
-  throw new Error('expected an error');
-}
 
 describe('parseDesign: the contract example', () => {
   const d = parseDesign(example());
@@ -93,7 +83,7 @@ describe('levelLabels', () => {
 
 describe('parseDesign: messages name the field', () => {
   it('rejects an unknown key and lists the allowed ones', () => {
-    const e = errorOf(() => parseDesign({ ...example(), seeds: 1 }));
+    const e = inputError(() => parseDesign({ ...example(), seeds: 1 }));
     expect(e.message).toMatch(/^design: unknown key "seeds"; allowed keys: seed, replicates, factors/);
     expect(e.field).toBe('design.seeds');
   });
@@ -101,14 +91,14 @@ describe('parseDesign: messages name the field', () => {
   it('rejects a nesting in an unknown factor', () => {
     const input = example();
     input.factors[2].within = 'sites';
-    const e = errorOf(() => parseDesign(input));
+    const e = inputError(() => parseDesign(input));
     expect(e.message).toBe('design.factors[2].within: unknown factor "sites"; factors: site, year, plot');
   });
 
   it('rejects an unknown grouping factor in a variant, with its path', () => {
     const input = example();
     input.variants[1].model.groups[0].factor = 'sites';
-    const e = errorOf(() => parseDesign(input));
+    const e = inputError(() => parseDesign(input));
     expect(e.field).toBe('design.variants[1].model.groups[0].factor');
     expect(e.message).toMatch(/unknown factor "sites"; factors: site, year, plot/);
   });
@@ -116,25 +106,25 @@ describe('parseDesign: messages name the field', () => {
   it('rejects an unknown fixed column in a variant', () => {
     const input = example();
     input.variants[0].model.fixed = ['rain', 'temperature'];
-    expect(errorOf(() => parseDesign(input)).message).toMatch(/^design\.variants\[0\]\.model\.fixed\[1\]: unknown column "temperature"/);
+    expect(inputError(() => parseDesign(input)).message).toMatch(/^design\.variants\[0\]\.model\.fixed\[1\]: unknown column "temperature"/);
   });
 
   it('passes model errors through with the variant path', () => {
     const input = example();
     input.variants[0].model.groups[0].as = 'mixed';
-    expect(errorOf(() => parseDesign(input)).field).toBe('design.variants[0].model.groups[0].as');
+    expect(inputError(() => parseDesign(input)).field).toBe('design.variants[0].model.groups[0].as');
   });
 
   it('refuses a variant whose response is not the design response', () => {
     const input = example();
     input.variants[0].model.response = 'count';
-    expect(errorOf(() => parseDesign(input)).message).toMatch(/^design\.variants\[0\]\.model\.response: expected "y"/);
+    expect(inputError(() => parseDesign(input)).message).toMatch(/^design\.variants\[0\]\.model\.response: expected "y"/);
   });
 
   it('refuses a truth coefficient that matches no column', () => {
     const input = example();
     input.truth.fixed.rainfall = 0.2;
-    const e = errorOf(() => parseDesign(input));
+    const e = inputError(() => parseDesign(input));
     expect(e.field).toBe('design.truth.fixed.rainfall');
     expect(e.message).toMatch(/matches no column/);
   });
@@ -142,7 +132,7 @@ describe('parseDesign: messages name the field', () => {
   it('refuses a truth coefficient on a reference level, naming a valid one', () => {
     const input = example();
     input.truth.fixed = { intercept: 10, 'habitat[dry]': 1 };
-    const e = errorOf(() => parseDesign(input));
+    const e = inputError(() => parseDesign(input));
     expect(e.message).toMatch(/^design\.truth\.fixed\["habitat\[dry\]"\]: "dry" is the reference level of "habitat"/);
     expect(e.message).toMatch(/habitat\[wet\]/);
   });
@@ -150,9 +140,9 @@ describe('parseDesign: messages name the field', () => {
   it('refuses a categorical column without a level and an unknown level', () => {
     const input = example();
     input.truth.fixed = { habitat: 1 };
-    expect(errorOf(() => parseDesign(input)).message).toMatch(/"habitat" is categorical/);
+    expect(inputError(() => parseDesign(input)).message).toMatch(/"habitat" is categorical/);
     input.truth.fixed = { 'habitat[swamp]': 1 };
-    expect(errorOf(() => parseDesign(input)).message).toMatch(/no level "swamp"; levels: dry, wet/);
+    expect(inputError(() => parseDesign(input)).message).toMatch(/no level "swamp"; levels: dry, wet/);
   });
 
   it('accepts products and factor levels as truth, and refuses the same product twice', () => {
@@ -160,7 +150,7 @@ describe('parseDesign: messages name the field', () => {
     input.truth.fixed = { intercept: 10, 'rain:habitat[wet]': 0.3, 'year[year3]': -1 };
     expect(parseDesign(input).truth.terms.map((t) => t.canonical)).toEqual(['intercept', 'habitat[wet]:rain', 'year[year3]']);
     input.truth.fixed = { 'rain:habitat[wet]': 0.3, 'habitat[wet]:rain': 0.3 };
-    expect(errorOf(() => parseDesign(input)).message).toMatch(/the same coefficient as "rain:habitat\[wet\]"/);
+    expect(inputError(() => parseDesign(input)).message).toMatch(/the same coefficient as "rain:habitat\[wet\]"/);
   });
 
   it('warns about variant coefficients that have no truth', () => {
@@ -175,59 +165,59 @@ describe('parseDesign: messages name the field', () => {
   it('requires the family parameters in truth.sd', () => {
     const input = example();
     delete input.truth.sd.residual;
-    expect(errorOf(() => parseDesign(input)).message).toBe(
+    expect(inputError(() => parseDesign(input)).message).toBe(
       'design.truth.sd.residual: expected a number ≥ 0 (required by the gaussian family)',
     );
   });
 
   it('refuses an unknown family', () => {
-    expect(errorOf(() => parseDesign({ ...example(), family: 'poisson' })).message).toMatch(/^design\.family: expected one of gaussian/);
+    expect(inputError(() => parseDesign({ ...example(), family: 'poisson' })).message).toMatch(/^design\.family: expected one of gaussian/);
   });
 
   it('refuses category probabilities that do not sum to 1', () => {
     const input = example();
     input.covariates[1].categories = { dry: 0.5, wet: 0.6 };
-    expect(errorOf(() => parseDesign(input)).message).toMatch(/^design\.covariates\[1\]\.categories: probabilities must sum to 1/);
+    expect(inputError(() => parseDesign(input)).message).toMatch(/^design\.covariates\[1\]\.categories: probabilities must sum to 1/);
   });
 
   it('refuses a covariate with two distributions or none', () => {
     const input = example();
     input.covariates[0].uniform = { min: 0, max: 1 };
-    expect(errorOf(() => parseDesign(input)).message).toMatch(/^design\.covariates\[0\]: give exactly one of normal, uniform, categories \(got normal and uniform\)/);
+    expect(inputError(() => parseDesign(input)).message).toMatch(/^design\.covariates\[0\]: give exactly one of normal, uniform, categories \(got normal and uniform\)/);
   });
 
   it('refuses confounding of a non-normal covariate or with a factor the unit is not nested in', () => {
     const input = example();
     input.covariates[1].confounding = { factor: 'site', strength: 0.5 };
-    expect(errorOf(() => parseDesign(input)).field).toBe('design.covariates[1].confounding');
+    expect(inputError(() => parseDesign(input)).field).toBe('design.covariates[1].confounding');
     const other = example();
     other.covariates.push({ name: 'soil', varies: 'plot', normal: { mean: 0, sd: 1 }, confounding: { factor: 'year', strength: 0.5 } });
-    expect(errorOf(() => parseDesign(other)).message).toMatch(/^design\.covariates\[2\]\.confounding\.factor: a covariate that varies by "plot"/);
+    expect(inputError(() => parseDesign(other)).message).toMatch(/^design\.covariates\[2\]\.confounding\.factor: a covariate that varies by "plot"/);
     other.covariates[2].confounding.factor = 'site';
     expect(parseDesign(other).covariates[2]).toMatchObject({ confounding: { factor: 'site', strength: 0.5 } });
   });
 
   it('refuses unequal sizes of the wrong length', () => {
     const input = { ...example(), unequal: { factor: 'site', sizes: [1, 2, 3] } };
-    expect(errorOf(() => parseDesign(input)).message).toBe('design.unequal.sizes: expected 6 sizes (one per level of "site"), got 3');
+    expect(inputError(() => parseDesign(input)).message).toBe('design.unequal.sizes: expected 6 sizes (one per level of "site"), got 3');
   });
 
   it('refuses slopes on a categorical column and correlations that are not semidefinite', () => {
     const input = example();
     input.truth.slopes = { site: { habitat: 0.3 } };
-    expect(errorOf(() => parseDesign(input)).field).toBe('design.truth.slopes.site.habitat');
+    expect(inputError(() => parseDesign(input)).field).toBe('design.truth.slopes.site.habitat');
     const input2 = example();
     input2.covariates.push({ name: 'temp', varies: 'observation', uniform: { min: 0, max: 1 } });
     input2.truth.slopes = { site: { rain: 0.3, temp: 0.2 } };
     // 0.9, 0.9, -0.9 cannot be correlations of three variables (the matrix has a negative eigenvalue).
     input2.truth.correlations = { site: { 'intercept:rain': 0.9, 'intercept:temp': 0.9, 'rain:temp': -0.9 } };
-    expect(errorOf(() => parseDesign(input2)).message).toMatch(/^design\.truth\.correlations\.site: these correlations do not form a valid/);
+    expect(inputError(() => parseDesign(input2)).message).toMatch(/^design\.truth\.correlations\.site: these correlations do not form a valid/);
   });
 
   it('refuses a correlation naming a term without a random slope', () => {
     const input = example();
     input.truth.correlations = { site: { 'intercept:rain': 0.2 } };
-    expect(errorOf(() => parseDesign(input)).message).toMatch(/among the random terms of "site": intercept/);
+    expect(inputError(() => parseDesign(input)).message).toMatch(/among the random terms of "site": intercept/);
   });
 
   it('warns about a zero residual SD', () => {

@@ -72,6 +72,28 @@ describe('buildDesign: treatment coding against patsy', () => {
     );
   });
 
+  it('without an intercept, the first categorical main effect gets one column per level, later factors stay reduced', () => {
+    const d = design(quadrats, { response: 'y', fixed: ['habitat', 'season', 'x'], intercept: false });
+    expect(d.fixedNames).toEqual(['habitat[dry]', 'habitat[mid]', 'habitat[wet]', 'season[spring]', 'season[summer]', 'x']);
+    // patsy.dmatrix("0 + habitat + season + x", df) on the table above.
+    expectSameColumnsAsPatsy(
+      d,
+      ['habitat[dry]', 'habitat[mid]', 'habitat[wet]', 'season[T.spring]', 'season[T.summer]', 'x'],
+      [
+        [0, 0, 1, 1, 0, 1.5], [1, 0, 0, 0, 0, 2.0], [0, 1, 0, 0, 1, -0.5], [1, 0, 0, 1, 0, 3.25],
+        [0, 0, 1, 0, 1, 0.0], [0, 1, 0, 0, 0, 4.0], [0, 0, 1, 0, 0, 1.0], [1, 0, 0, 1, 0, 2.5],
+        [0, 1, 0, 1, 0, 0.75], [0, 0, 1, 0, 1, -1.0], [1, 0, 0, 0, 1, 2.25], [0, 1, 0, 0, 0, 3.5],
+      ],
+    );
+    // the first categorical main effect gets every level wherever it stands: patsy.dmatrix("0 + x + habitat", df)
+    // names habitat[dry], habitat[mid], habitat[wet], x (it puts factors first; we keep model order)
+    const later = design(quadrats, { response: 'y', fixed: ['x', 'habitat'], intercept: false });
+    expect(later.fixedNames).toEqual(['x', 'habitat[dry]', 'habitat[mid]', 'habitat[wet]']);
+    // no categorical main effect: regression through the origin; patsy.dmatrix("0 + x + x:habitat", df)
+    const origin = design(quadrats, { response: 'y', fixed: ['x', 'x:habitat'], intercept: false });
+    expect(origin.fixedNames).toEqual(['x', 'x:habitat[mid]', 'x:habitat[wet]']);
+  });
+
   it('factor-by-factor interaction', () => {
     const d = design(quadrats, { response: 'y', fixed: ['habitat', 'season', 'habitat:season'] });
     // Ours: first factor outer in the product columns.

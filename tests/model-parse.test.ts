@@ -20,6 +20,7 @@ describe('parseModel: defaults', () => {
     expect(parseModel({ response: 'cover' })).toEqual({
       response: 'cover',
       fixed: [],
+      intercept: true,
       groups: [],
       estimation: 'REML',
       categorical: [],
@@ -96,7 +97,7 @@ describe('modelToJson', () => {
     expect(parseModel(JSON.parse(JSON.stringify(json)))).toEqual(m);
     // Every default is written out.
     expect(Object.keys(json).sort()).toEqual(
-      ['categorical', 'estimation', 'fixed', 'groups', 'interval', 'level', 'missing', 'response'].sort(),
+      ['categorical', 'estimation', 'fixed', 'groups', 'intercept', 'interval', 'level', 'missing', 'response'].sort(),
     );
   });
 
@@ -145,7 +146,7 @@ describe('parseModel: errors name the field', () => {
   it('lists allowed keys for an unknown key', () => {
     const top = inputError(() => parseModel({ ...base, fixd: ['x'] }));
     expect(top.message).toBe(
-      'model: unknown key "fixd"; allowed keys: response, fixed, groups, estimation, categorical, missing, interval, level',
+      'model: unknown key "fixd"; allowed keys: response, fixed, intercept, groups, estimation, categorical, missing, interval, level',
     );
     const group = inputError(() => parseModel({ ...base, groups: [{ factor: 's', as: 'random', nested: 'x' }] }));
     expect(group.message).toBe(
@@ -153,6 +154,16 @@ describe('parseModel: errors name the field', () => {
     );
     const term = inputError(() => parseModel({ ...base, fixed: [{ column: 'h', ref: 'a' }] }));
     expect(term.message).toBe('model.fixed[0]: unknown key "ref"; allowed keys: column, reference');
+  });
+
+  it('checks intercept: true or false, and false only with a fixed term', () => {
+    expect(parseModel({ response: 'y', fixed: ['x'], intercept: false }).intercept).toBe(false);
+    expect(inputError(() => parseModel({ response: 'y', fixed: ['x'], intercept: 0 })).message).toBe(
+      'model.intercept: expected true or false, got 0',
+    );
+    const e = inputError(() => parseModel({ response: 'y', intercept: false }));
+    expect(e.message).toBe('model.intercept: a model without an intercept needs at least one fixed term');
+    expect(e.field).toBe('model.intercept');
   });
 
   it('requires a response and an object', () => {

@@ -5,6 +5,10 @@
  * Models, 3rd ed., ch. 7):
  * - X starts with the column "intercept", then the fixed terms in model order, then the
  *   grouping factors with `as: "fixed"` in model order.
+ * - With `intercept: false` there is no intercept column, and the first categorical main effect
+ *   (in model order) is coded with one column per level, taking the intercept's place as in the
+ *   cell-means model (Searle 1987, Linear Models for Unbalanced Data, §3.2); every other factor
+ *   keeps its reduced coding, so the columns stay linearly independent.
  * - A numeric column is one column. A text column, a column listed in `categorical`, an object
  *   term, or a grouping factor used in a fixed term, is a factor: one 0/1 column per level except
  *   the reference, named `habitat[wet]`. Reference: the one given, else the first level in plain
@@ -38,7 +42,7 @@ import { codeColumn, nestFactor, sortFactor, type CodedFactor, type SortedFactor
 interface CategoricalCoding {
   kind: 'categorical';
   codes: Int32Array;
-  /** Index of the reference level (its rows get all zeros). */
+  /** Index of the reference level (its rows get all zeros); -1 for one column per level. */
   reference: number;
   /** Names of the non-reference columns, `habitat[wet]`. */
   names: string[];
@@ -133,11 +137,13 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
   };
 
   // Fixed terms.
-  const fixedNames: string[] = [INTERCEPT];
+  const fixedNames: string[] = model.intercept ? [INTERCEPT] : [];
   const blocks: FixedBlock[] = [];
+  const fullTerm = model.intercept ? -1 : model.fixed.findIndex((t) => !isInteraction(t) && kindOf(termLabel(t)) === 'categorical');
   model.fixed.forEach((term, i) => {
     const field = `model.fixed[${i}]`;
-    const parts = termColumns(term).map((c) => codingOf(c, field));
+    const full = i === fullTerm;
+    const parts = full ? [fullCoding(data, rowIds, termLabel(term))] : termColumns(term).map((c) => codingOf(c, field));
     const names = parts.length === 1 ? parts[0].names : productNames(parts[0].names, parts[1].names);
     blocks.push({ parts, offset: fixedNames.length, width: names.length });
     fixedNames.push(...names);
@@ -220,7 +226,7 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
   }
 
   const X = new Float64Array(n * p);
-  for (let r = 0; r < n; r++) X[r * p] = 1;
+  if (model.intercept) for (let r = 0; r < n; r++) X[r * p] = 1;
   for (const b of blocks) fillFixedBlock(X, p, n, b);
   for (const b of groupBlocks) fillGroupBlock(X, p, n, b);
 
@@ -307,6 +313,12 @@ function treatmentCoding(column: string, factor: SortedFactor, reference: string
   return { kind: 'categorical', codes: factor.codes, reference: ref, names };
 }
 
+/** One 0/1 column per level, for the first categorical main effect of a model without an intercept. */
+function fullCoding(data: Columns, rowIds: Int32Array, column: string): CategoricalCoding {
+  const factor = sortFactor(codeColumn(data[column], rowIds), column);
+  return { kind: 'categorical', codes: factor.codes, reference: -1, names: factor.levels.map((l) => levelName(column, l)) };
+}
+
 function slopeValues(
   column: string,
   g: GroupSpec,
@@ -364,6 +376,7 @@ function rejectDuplicateNames(names: string[]): void {
 function columnIndex(c: Coding, r: number): number {
   if (c.kind === 'numeric') return 0;
   const code = c.codes[r];
+  if (c.reference < 0) return code;
   return code === c.reference ? -1 : code < c.reference ? code : code - 1;
 }
 

@@ -147,8 +147,13 @@ function columnNames(column: string, model: ResolvedModel, levels: Map<string, s
 
 /** Fixed-effect coefficient names in model order: intercept, fixed terms, then fixed grouping factors. */
 export function variantCoefficients(model: ResolvedModel, levels: Map<string, string[]>): string[] {
-  const names = [INTERCEPT];
-  for (const term of model.fixed) names.push(...fixedTermNames(term, model, levels));
+  const names = model.intercept ? [INTERCEPT] : [];
+  // without an intercept the first categorical main effect has one coefficient per level (data/build-design)
+  const full = model.intercept ? -1 : model.fixed.findIndex((t) => termColumns(t).length === 1 && levels.has(termColumns(t)[0]));
+  model.fixed.forEach((term, i) => {
+    const column = termColumns(term)[0];
+    names.push(...(i === full ? levels.get(column)!.map((l) => levelName(column, l)) : fixedTermNames(term, model, levels)));
+  });
   for (const g of model.groups) if (g.as === 'fixed') names.push(...columnNames(g.factor, model, levels, g.reference));
   return names;
 }

@@ -16,6 +16,7 @@
  *   fixed and random stays a one-field change; each role uses what applies to it.
  * - `reference` may be given as a number in JSON; it is stored as text, as levels are.
  * - The interval method is any non-empty text; the fitting engine checks that it knows it.
+ * - `intercept: false` needs at least one fixed term.
  */
 import { QuadratInputError, describeValue, listNames } from './errors';
 import { INTERACTION_SEPARATOR, termColumns, termLabel } from './terms';
@@ -30,7 +31,7 @@ import type {
   ResolvedModel,
 } from './types';
 
-const MODEL_KEYS = ['response', 'fixed', 'groups', 'estimation', 'categorical', 'missing', 'interval', 'level'];
+const MODEL_KEYS = ['response', 'fixed', 'intercept', 'groups', 'estimation', 'categorical', 'missing', 'interval', 'level'];
 const GROUP_KEYS = ['factor', 'as', 'within', 'slopes', 'correlated', 'reference'];
 const CATEGORICAL_TERM_KEYS = ['column', 'reference'];
 const ROLES: readonly GroupRole[] = ['random', 'fixed'];
@@ -61,10 +62,12 @@ export function parseModel(input: unknown, path = 'model'): ResolvedModel {
   }
   const fixed = parseFixedTerms(obj.fixed, `${path}.fixed`, response);
   const groups = parseGroups(obj.groups, `${path}.groups`, response, fixed, `${path}.fixed`);
+  const intercept = parseIntercept(obj.intercept, `${path}.intercept`, fixed.length);
 
   return {
     response,
     fixed,
+    intercept,
     groups,
     estimation: parseChoice(obj.estimation, ESTIMATIONS, MODEL_DEFAULTS.estimation, `${path}.estimation`),
     categorical,
@@ -83,6 +86,7 @@ export function modelToJson(model: ModelSpec | ResolvedModel): ModelSpec {
   return {
     response: m.response,
     fixed: m.fixed.map((t) => (typeof t === 'string' ? t : copyCategoricalTerm(t))),
+    intercept: m.intercept,
     groups: m.groups.map(copyGroup),
     estimation: m.estimation,
     categorical: [...m.categorical],
@@ -237,6 +241,14 @@ function parseGroup(value: unknown, path: string, response: string): GroupSpec {
   }
   if (obj.reference !== undefined) group.reference = parseReference(obj.reference, `${path}.reference`);
   return group;
+}
+
+/** Without an intercept the fixed part needs a term of its own (a model of pure noise around 0 is not offered). */
+function parseIntercept(value: unknown, path: string, fixedTerms: number): boolean {
+  if (value === undefined) return true;
+  if (typeof value !== 'boolean') return fail(`${path}: expected true or false, got ${describeValue(value)}`, path);
+  if (!value && fixedTerms === 0) fail(`${path}: a model without an intercept needs at least one fixed term`, path);
+  return value;
 }
 
 function parseLevel(value: unknown, path: string): number {

@@ -45,8 +45,13 @@ export type FixedTerm = string | CategoricalTerm;
 
 export interface ModelSpec {
   response: string;
-  /** Fixed terms; an intercept is always included. Default: []. */
+  /** Fixed terms. Default: []. */
   fixed?: FixedTerm[];
+  /**
+   * Whether the fixed part has an intercept. Default: true. With false the regression goes
+   * through the origin, and the first categorical main effect gets one coefficient per level.
+   */
+  intercept?: boolean;
   /** Grouping factors. Default: [] (ordinary least squares). */
   groups?: GroupSpec[];
   /** Default: 'REML'. */
@@ -65,6 +70,7 @@ export interface ModelSpec {
 export interface ResolvedModel {
   response: string;
   fixed: FixedTerm[];
+  intercept: boolean;
   groups: GroupSpec[];
   estimation: Estimation;
   categorical: string[];

@@ -19,6 +19,7 @@ export { fitModel, aliasPriority } from './fit/fit-model';
 export type { SurveyData } from './fit/fit-model';
 export { fitDesign, INTERVAL_METHODS } from './fit/fit-design';
 export type { FitOptions, IntervalMethod } from './fit/fit-design';
+export { remlComparisonCaution } from './fit/comparison';
 export type { FitResult, FixedEffectRow, VarianceComponentRow, CorrelationRow, ConditionalModeRow } from './fit/result';
 export type { DesignMatrices, RandomTerm } from './fit/design';
 export { contrastTest, termTest, termCoefficients, likelihoodRatioTest, bootstrapFit } from './fit/inference/index';

@@ -293,7 +293,7 @@ describe('buildDesign: random terms', () => {
 
   it('warns about a slope without a fixed term and one level per observation', () => {
     const d = design(
-      { y: [1, 2, 3, 4], x: [1, 2, 3, 5], id: ['a', 'b', 'c', 'd'] },
+      { y: [1.5, 2, 3, 4], x: [1, 2, 3, 5], id: ['a', 'b', 'c', 'd'] },
       { response: 'y', groups: [{ factor: 'id', as: 'random', slopes: ['x'] }] },
     );
     expect(d.warnings).toEqual([
@@ -305,7 +305,7 @@ describe('buildDesign: random terms', () => {
 
 describe('buildDesign: missing values', () => {
   const withGaps: Columns = {
-    y: [1, 2, 3, 4, 5, 6, 7, 8],
+    y: [1.5, 2, 3, 4, 5, 6, 7, 8],
     rain: [0.1, null, 0.3, Number.NaN, 0.5, 0.6, 0.7, 0.8],
     site: ['A', 'A', '', 'B', 'B', 'C', 'C', 'D'],
     extra: [null, null, null, null, null, null, null, null],
@@ -316,7 +316,7 @@ describe('buildDesign: missing values', () => {
     expect(d.droppedRows).toEqual([1, 2, 3]);
     expect(Array.from(d.rowIds)).toEqual([0, 4, 5, 6, 7]);
     expect(d.n).toBe(5);
-    expect(Array.from(d.y)).toEqual([1, 5, 6, 7, 8]);
+    expect(Array.from(d.y)).toEqual([1.5, 5, 6, 7, 8]);
     expect(column(d, 'rain')).toEqual([0.1, 0.5, 0.6, 0.7, 0.8]);
     expect(d.warnings).toEqual(['dropped 3 rows with missing values in columns: rain, site']);
     // Levels come from the rows used: all four sites remain here.
@@ -385,7 +385,7 @@ describe('buildDesign: errors name the culprit', () => {
 
   it('categorical numbers when listed in categorical', () => {
     const d = design(
-      { y: [1, 2, 3, 4], year: [2021, 2020, 2022, 2021] },
+      { y: [1.5, 2, 3, 4], year: [2021, 2020, 2022, 2021] },
       { response: 'y', fixed: ['year'], categorical: ['year', 'unused'] },
     );
     expect(d.fixedNames).toEqual(['intercept', 'year[2021]', 'year[2022]']);

@@ -1,4 +1,5 @@
 import type { FitResult } from '../fit/result';
+import { remlComparisonCaution } from '../fit/comparison';
 import { renderTable, type Cell } from './text-table';
 
 /** Side-by-side fixed effects and variance components of several fits of the same data. */
@@ -23,6 +24,7 @@ export function formatComparison(fits: { name: string; fit: FitResult }[]): stri
     name, fit.estimation, fit.converged ? 'yes' : 'NO', fit.singular ? 'yes' : 'no', fit.logLik, fit.aic,
   ]);
   out.push('', renderTable(['model', 'estimation', 'converged', 'singular', 'logLik', 'AIC'], info));
-  out.push('', 'Note: AIC of REML fits with different fixed effects are not comparable.');
+  const caution = remlComparisonCaution(fits.map((f) => f.fit));
+  if (caution) out.push('', caution);
   return out.join('\n');
 }

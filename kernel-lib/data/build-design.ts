@@ -36,6 +36,7 @@ import type { GroupSpec, ResolvedModel } from '../model/types';
 import { columnLength, type Columns } from './columns';
 import { inferColumnKind, numericValues, type ColumnKind } from './column-kind';
 import { selectCompleteRows, type UsedColumn } from './complete-rows';
+import { responseShapeWarning } from './response-shape';
 import { codeColumn, nestFactor, sortFactor, type CodedFactor, type SortedFactor } from './factor';
 
 /** One factor of a fixed term after treatment coding. */
@@ -99,6 +100,11 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
   }
 
   const y = numericValues(data[model.response], rowIds, model.response, 'response column');
+  // a model description without a family is normal (the field arrives with the count families)
+  if (((model as { family?: string }).family ?? 'normal') === 'normal') {
+    const shape = responseShapeWarning(y, model.response);
+    if (shape !== undefined) warnings.push(shape);
+  }
 
   // Column kinds and codings, computed once per column.
   const groupFactors = new Set(model.groups.map((g) => g.factor));

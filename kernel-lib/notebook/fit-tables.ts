@@ -1,5 +1,6 @@
 /** Fits side by side as table rows: fixed effects with their intervals, and the SDs of the variance components. */
 import type { FitResult } from '../fit/result';
+import { remlComparisonCaution } from '../fit/comparison';
 
 export interface NamedFitResult {
   name: string;
@@ -94,8 +95,14 @@ export function varianceRows(
   });
 }
 
-/** One row per fit: observations, flags and warnings, for a "how did the fits go" table. */
+const AIC_NOT_COMPARABLE = 'AIC not comparable with the other fits: REML with a different fixed part (refit with ML to compare)';
+
+/**
+ * One row per fit: observations, flags, AIC and warnings, for a "how did the fits go" table.
+ * When the fits' AIC cannot be compared (REML with different fixed parts) every row says so.
+ */
 export function fitStatusRows(fits: readonly NamedFitResult[]): Record<string, string | number>[] {
+  const caution = remlComparisonCaution(fits.map((f) => f.fit));
   return fits.map(({ name, fit }) => ({
     fit: name,
     estimation: fit.estimation,
@@ -103,6 +110,7 @@ export function fitStatusRows(fits: readonly NamedFitResult[]): Record<string, s
     'dropped rows': fit.droppedRows,
     converged: fit.converged ? 'yes' : 'no',
     singular: fit.singular ? 'yes' : 'no',
-    warnings: fit.warnings.join('; ') || 'none',
+    AIC: fit.aic,
+    warnings: [...fit.warnings, ...(caution ? [AIC_NOT_COMPARABLE] : [])].join('; ') || 'none',
   }));
 }

@@ -102,7 +102,7 @@ describe('demo model fitted to the demo survey', () => {
     const truth: Record<string, number> = {
       intercept: DEMO_TRUTH.intercept,
       soil_moisture: DEMO_TRUTH.soilMoisture,
-      'grazing[ungrazed]': DEMO_TRUTH.ungrazed,
+      'grazing=ungrazed': DEMO_TRUTH.ungrazed,
     };
     for (const [term, value] of Object.entries(truth)) {
       const row = fixedRow(fit, term);
@@ -140,8 +140,8 @@ describe('demo model fitted to the demo survey', () => {
     const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
     expect(rel(fixedRow(fit, 'intercept').estimate, 46.870772)).toBeLessThan(1e-4);
     expect(rel(fixedRow(fit, 'soil_moisture').estimate, 3.876651)).toBeLessThan(1e-4);
-    expect(rel(fixedRow(fit, 'grazing[ungrazed]').estimate, 14.488816)).toBeLessThan(1e-4);
-    expect(rel(fixedRow(fit, 'grazing[ungrazed]').se, 2.352704)).toBeLessThan(1e-3);
+    expect(rel(fixedRow(fit, 'grazing=ungrazed').estimate, 14.488816)).toBeLessThan(1e-4);
+    expect(rel(fixedRow(fit, 'grazing=ungrazed').se, 2.352704)).toBeLessThan(1e-3);
     expect(rel(fit.residualSd, 2.7661182)).toBeLessThan(1e-3);
     expect(rel(randomSd(fit, 'plot'), 2.1354515)).toBeLessThan(1e-3);
     expect(rel(randomSd(fit, 'site'), 2.5388400)).toBeLessThan(1e-3);
@@ -151,12 +151,12 @@ describe('demo model fitted to the demo survey', () => {
   it('the year-fixed variant also converges, with three year contrasts and no year variance', () => {
     const fitYearFixed = fitModel(readCsvFile(CSV_PATH), readFileSync(MODEL_YEAR_FIXED_PATH, 'utf8'));
     expect(fitYearFixed.converged).toBe(true);
-    expect(fitYearFixed.fixed.filter((f) => f.term.startsWith('year[')).length).toBe(3);
+    expect(fitYearFixed.fixed.filter((f) => f.term.startsWith('year=')).length).toBe(3);
     expect(fitYearFixed.random.some((r) => r.factor === 'year')).toBe(false);
     // Grazing is a between-site contrast: treating year as fixed barely changes it in a
     // balanced layout (common practice, no source).
-    expect(Math.abs(fixedRow(fitYearFixed, 'grazing[ungrazed]').estimate - fixedRow(fit, 'grazing[ungrazed]').estimate)).toBeLessThan(
-      0.1 * fixedRow(fit, 'grazing[ungrazed]').se,
+    expect(Math.abs(fixedRow(fitYearFixed, 'grazing=ungrazed').estimate - fixedRow(fit, 'grazing=ungrazed').estimate)).toBeLessThan(
+      0.1 * fixedRow(fit, 'grazing=ungrazed').se,
     );
   });
 });

@@ -84,7 +84,7 @@ describe('expandGrid', () => {
 
   it('reports an invalid scenario with its key and field', () => {
     const input = base();
-    input.truth.fixed['year[year3]'] = 1;
+    input.truth.fixed['year=year3'] = 1;
     input.grid = { 'factors.year.levels': [3, 2] };
     const d = parseDesign(input);
     try {
@@ -92,8 +92,8 @@ describe('expandGrid', () => {
       throw new Error('expected an error');
     } catch (e) {
       expect(e).toBeInstanceOf(QuadratInputError);
-      expect((e as Error).message).toMatch(/^scenario factors\.year\.levels=2: design\.truth\.fixed\["year\[year3\]"\]: column "year" has no level "year3"/);
-      expect((e as QuadratInputError).field).toBe('design.truth.fixed["year[year3]"]');
+      expect((e as Error).message).toMatch(/^scenario factors\.year\.levels=2: design\.truth\.fixed\["year=year3"\]: column "year" has no level "year3"/);
+      expect((e as QuadratInputError).field).toBe('design.truth.fixed["year=year3"]');
     }
   });
 });

@@ -20,7 +20,7 @@ function example(): any {
       { name: 'rain', varies: 'observation', normal: { mean: 0, sd: 1 } },
       { name: 'habitat', varies: 'site', categories: { dry: 0.5, wet: 0.5 } },
     ],
-    truth: { fixed: { intercept: 10, rain: 0.5, 'habitat[wet]': 1 }, sd: { site: 1, year: 0.5, residual: 2 } },
+    truth: { fixed: { intercept: 10, rain: 0.5, 'habitat=wet': 1 }, sd: { site: 1, year: 0.5, residual: 2 } },
     variants: [
       {
         name: 'year random',
@@ -51,12 +51,12 @@ describe('parseDesign: the contract example', () => {
   });
 
   it('names each variant\'s coefficients and attaches their truth', () => {
-    expect(d.variants[0].coefficients).toEqual(['intercept', 'rain', 'habitat[wet]']);
-    expect(d.variants[0].truth).toEqual({ intercept: 10, rain: 0.5, 'habitat[wet]': 1 });
+    expect(d.variants[0].coefficients).toEqual(['intercept', 'rain', 'habitat=wet']);
+    expect(d.variants[0].truth).toEqual({ intercept: 10, rain: 0.5, 'habitat=wet': 1 });
     expect(d.variants[0].realised).toEqual([]);
-    expect(d.variants[1].coefficients).toEqual(['intercept', 'rain', 'habitat[wet]', 'year[year2]', 'year[year3]']);
+    expect(d.variants[1].coefficients).toEqual(['intercept', 'rain', 'habitat=wet', 'year=year2', 'year=year3']);
     // year has random truth, so as a fixed factor its contrasts and the intercept estimate realised effects.
-    expect(d.variants[1].realised).toEqual(['intercept', 'year[year2]', 'year[year3]']);
+    expect(d.variants[1].realised).toEqual(['intercept', 'year=year2', 'year=year3']);
   });
 
   it('accepts JSON text', () => {
@@ -131,26 +131,37 @@ describe('parseDesign: messages name the field', () => {
 
   it('refuses a truth coefficient on a reference level, naming a valid one', () => {
     const input = example();
-    input.truth.fixed = { intercept: 10, 'habitat[dry]': 1 };
+    input.truth.fixed = { intercept: 10, 'habitat=dry': 1 };
     const e = inputError(() => parseDesign(input));
-    expect(e.message).toMatch(/^design\.truth\.fixed\["habitat\[dry\]"\]: "dry" is the reference level of "habitat"/);
-    expect(e.message).toMatch(/habitat\[wet\]/);
+    expect(e.message).toMatch(/^design\.truth\.fixed\["habitat=dry"\]: "dry" is the reference level of "habitat"/);
+    expect(e.message).toMatch(/habitat=wet/);
   });
 
   it('refuses a categorical column without a level and an unknown level', () => {
     const input = example();
     input.truth.fixed = { habitat: 1 };
     expect(inputError(() => parseDesign(input)).message).toMatch(/"habitat" is categorical/);
-    input.truth.fixed = { 'habitat[swamp]': 1 };
+    input.truth.fixed = { 'habitat=swamp': 1 };
     expect(inputError(() => parseDesign(input)).message).toMatch(/no level "swamp"; levels: dry, wet/);
+  });
+
+  it('refuses level coefficients in the earlier bracket form, showing the column=level spelling', () => {
+    // Project naming rule (README, "Coefficient names"): levels are written column=level.
+    const input = example();
+    input.truth.fixed = { intercept: 10, 'habitat[wet]': 1 };
+    const e = inputError(() => parseDesign(input));
+    expect(e.field).toBe('design.truth.fixed["habitat[wet]"]');
+    expect(e.message).toMatch(/write "habitat=wet" instead of "habitat\[wet\]"/);
+    input.truth.fixed = { 'rain:habitat[wet]': 0.3 };
+    expect(inputError(() => parseDesign(input)).message).toMatch(/write "rain:habitat=wet"/);
   });
 
   it('accepts products and factor levels as truth, and refuses the same product twice', () => {
     const input = example();
-    input.truth.fixed = { intercept: 10, 'rain:habitat[wet]': 0.3, 'year[year3]': -1 };
-    expect(parseDesign(input).truth.terms.map((t) => t.canonical)).toEqual(['intercept', 'habitat[wet]:rain', 'year[year3]']);
-    input.truth.fixed = { 'rain:habitat[wet]': 0.3, 'habitat[wet]:rain': 0.3 };
-    expect(inputError(() => parseDesign(input)).message).toMatch(/the same coefficient as "rain:habitat\[wet\]"/);
+    input.truth.fixed = { intercept: 10, 'rain:habitat=wet': 0.3, 'year=year3': -1 };
+    expect(parseDesign(input).truth.terms.map((t) => t.canonical)).toEqual(['intercept', 'habitat=wet:rain', 'year=year3']);
+    input.truth.fixed = { 'rain:habitat=wet': 0.3, 'habitat=wet:rain': 0.3 };
+    expect(inputError(() => parseDesign(input)).message).toMatch(/the same coefficient as "rain:habitat=wet"/);
   });
 
   it('warns about variant coefficients that have no truth', () => {
@@ -158,8 +169,8 @@ describe('parseDesign: messages name the field', () => {
     input.truth.fixed = { intercept: 10, rain: 0.5 };
     const d = parseDesign(input);
     expect(d.warnings).toHaveLength(2);
-    expect(d.warnings[0]).toBe('design.variants[0] ("year random"): no truth for habitat[wet]; taken as 0');
-    expect(d.variants[0].truth['habitat[wet]']).toBe(0);
+    expect(d.warnings[0]).toBe('design.variants[0] ("year random"): no truth for habitat=wet; taken as 0');
+    expect(d.variants[0].truth['habitat=wet']).toBe(0);
   });
 
   it('requires the family parameters in truth.sd', () => {

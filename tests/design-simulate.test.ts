@@ -22,7 +22,7 @@ function example(missing = 0.1): any {
       { name: 'rain', varies: 'observation', normal: { mean: 0, sd: 1 } },
       { name: 'habitat', varies: 'site', categories: { dry: 0.5, wet: 0.5 } },
     ],
-    truth: { fixed: { intercept: 10, rain: 0.5, 'habitat[wet]': 1 }, sd: { site: 1, year: 0.5, residual: 2 } },
+    truth: { fixed: { intercept: 10, rain: 0.5, 'habitat=wet': 1 }, sd: { site: 1, year: 0.5, residual: 2 } },
     variants: [{ name: 'all random', model: { response: 'y', fixed: ['rain', 'habitat'], groups: [{ factor: 'site', as: 'random' }, { factor: 'year', as: 'random' }] } }],
   };
 }
@@ -194,7 +194,7 @@ describe('simulateColumns: moments over replicates', () => {
         { name: 'habitat', varies: 'observation', categories: { dry: 0.3, wet: 0.5, marsh: 0.2 } },
       ],
       truth: {
-        fixed: { intercept: 2, rain: 0.5, temp: -0.1, 'habitat[wet]': 1, 'habitat[marsh]': -1, 'rain:habitat[wet]': 0.3, 'year[year2]': 0.7 },
+        fixed: { intercept: 2, rain: 0.5, temp: -0.1, 'habitat=wet': 1, 'habitat=marsh': -1, 'rain:habitat=wet': 0.3, 'year=year2': 0.7 },
         sd: { site: 1, residual: 0.1 },
         slopes: { site: { rain: 0.4 } },
         correlations: { site: { 'intercept:rain': 0.6 } },
@@ -325,7 +325,7 @@ describe('realisedTruth', () => {
     };
     const design = parseDesign(input);
     const variant = design.variants[0];
-    expect(variant.coefficients).toEqual(['intercept', 'rain', 'year[year2]', 'year[year3]', 'year[year4]']);
+    expect(variant.coefficients).toEqual(['intercept', 'rain', 'year=year2', 'year=year3', 'year=year4']);
     const d = simulateColumns(design, createStream(11, 'realised'));
     const X = new Matrix(d.n, 5);
     const y = Matrix.columnVector(Array.from(col(d, 'y')));
@@ -339,7 +339,7 @@ describe('realisedTruth', () => {
     const truth = realisedTruth(variant, d);
     const b = d.effects.year.values;
     expect(truth.intercept).toBeCloseTo(10 + b[0], 12);
-    expect(truth['year[year3]']).toBeCloseTo(b[2] - b[0], 12);
+    expect(truth['year=year3']).toBeCloseTo(b[2] - b[0], 12);
     variant.coefficients.forEach((name, j) => {
       expect(Math.abs(beta.get(j, 0) - truth[name])).toBeLessThan(4 * Math.sqrt(cov.get(j, j)));
     });

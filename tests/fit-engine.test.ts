@@ -206,7 +206,7 @@ describe('all grouping factors fixed: ordinary least squares', () => {
       X.push([1, x, s === 1 ? 1 : 0, s === 2 ? 1 : 0, s === 3 ? 1 : 0, s === 4 ? 1 : 0]);
       y.push(1 + 2 * x + s + rng.normal());
     }
-    const names = ['intercept', 'x', 'site[B]', 'site[C]', 'site[D]', 'site[E]'];
+    const names = ['intercept', 'x', 'site=B', 'site=C', 'site=D', 'site=E'];
     const fit = fitDesign(handDesign(X, names, y));
     const Xm = new Matrix(X);
     const ym = Matrix.columnVector(y);
@@ -237,7 +237,7 @@ describe('all grouping factors fixed: ordinary least squares', () => {
       X.push([1, x, siteCov[s], s === 1 ? 1 : 0, s === 2 ? 1 : 0, s === 3 ? 1 : 0]);
       y.push(x + siteCov[s] + rng.normal());
     }
-    const names = ['intercept', 'x', 'elevation', 'site[B]', 'site[C]', 'site[D]'];
+    const names = ['intercept', 'x', 'elevation', 'site=B', 'site=C', 'site=D'];
     const fit = fitDesign(handDesign(X, names, y), { aliasPriority: [0, 3, 4, 5, 1, 2] });
     expect(fit.aliased).toEqual(['elevation']);
     const elev = fit.fixed.find((r) => r.term === 'elevation')!;

@@ -82,9 +82,9 @@ function splitPlot(seed: number, r: number, a: number, b: number) {
   }
   const effect = (level: number, levels: number, c: number) => (level === c + 1 ? 1 : level === 0 ? -1 : 0);
   const names = ['intercept'];
-  for (let c = 0; c < a - 1; c++) names.push(`A[${c + 2}]`);
-  for (let c = 0; c < b - 1; c++) names.push(`B[${c + 2}]`);
-  for (let c = 0; c < a - 1; c++) for (let e = 0; e < b - 1; e++) names.push(`A[${c + 2}]:B[${e + 2}]`);
+  for (let c = 0; c < a - 1; c++) names.push(`A=${c + 2}`);
+  for (let c = 0; c < b - 1; c++) names.push(`B=${c + 2}`);
+  for (let c = 0; c < a - 1; c++) for (let e = 0; e < b - 1; e++) names.push(`A=${c + 2}:B=${e + 2}`);
   const X = rows.map(({ i, j }) => {
     const ea = Array.from({ length: a - 1 }, (_, c) => effect(i, a, c));
     const eb = Array.from({ length: b - 1 }, (_, c) => effect(j, b, c));

@@ -26,7 +26,7 @@ describe('interval methods through the model description', () => {
     expect(fit.fixed.every((r) => r.method === 'satterthwaite')).toBe(true);
     // grazing varies between sites only: 6 sites, intercept and grazing → about 6 − 2 df, far below n − p
     // (common practice, no source: the between-site stratum has sites − 2 df in a balanced layout)
-    const grazing = fit.fixed.find((r) => r.term === 'grazing[ungrazed]')!;
+    const grazing = fit.fixed.find((r) => r.term === 'grazing=ungrazed')!;
     expect(grazing.df).toBeGreaterThan(3);
     expect(grazing.df).toBeLessThan(5);
     const design = buildDesign(data, parseModel(model));
@@ -71,7 +71,7 @@ describe('F test of a categorical term on the demo survey (year entered as fixed
   const fit = fitDesign(design, { aliasPriority: aliasPriority(design, model) });
 
   it('selects every year[level] coefficient', () => {
-    expect(termCoefficients(design.fixedNames, 'year')).toEqual(['year[2022]', 'year[2023]', 'year[2024]']);
+    expect(termCoefficients(design.fixedNames, 'year')).toEqual(['year=2022', 'year=2023', 'year=2024']);
     expect(() => termCoefficients(design.fixedNames, 'rainfall')).toThrow(/term "rainfall": no coefficient of that name/);
   });
 

@@ -164,7 +164,7 @@ describe('notebook helpers', () => {
 
   it('fixedEffectRows pairs the fits term by term and marks the intercept of a fit with the factor fixed', () => {
     const randomFit = fakeFit([['intercept', 48, 44, 52], ['rain', 4, 3, 5]], [['year', 'intercept', 3], ['residual', '', 2]]);
-    const fixedFit = fakeFit([['intercept', 45, 43, 47], ['year[2022]', 2, 0, 4], ['rain', 4.1, 3.25, 5]], [['residual', '', 2.1]]);
+    const fixedFit = fakeFit([['intercept', 45, 43, 47], ['year=2022', 2, 0, 4], ['rain', 4.1, 3.25, 5]], [['residual', '', 2.1]]);
     const fits = [{ name: 'year random', fit: randomFit }, { name: 'year fixed', fit: fixedFit }];
     const rows = q.fixedEffectRows(fits, { truth: { intercept: 48, rain: 4 }, fixedFactors: ['year'] });
     expect(rows.map((r) => [r.term, r.fit, r.truth, r.width, r.note])).toEqual([
@@ -173,7 +173,7 @@ describe('notebook helpers', () => {
       ['rain', 'year random', 4, 2, ''],
       ['rain', 'year fixed', 4, 1.75, ''],
     ]);
-    expect(q.fixedEffectRows(fits, { fixedFactors: ['year'], includeGroupLevels: true }).map((r) => r.term)).toContain('year[2022]');
+    expect(q.fixedEffectRows(fits, { fixedFactors: ['year'], includeGroupLevels: true }).map((r) => r.term)).toContain('year=2022');
     expect(q.varianceRows(fits, { year: 3, residual: 2 })).toEqual([
       { component: 'sd(year)', truth: 3, 'year random': 3, 'year fixed': 'fixed' },
       { component: 'sd(residual)', truth: 2, 'year random': 2, 'year fixed': 2.1 },

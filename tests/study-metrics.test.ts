@@ -313,8 +313,8 @@ describe('summarise: edge cases and bad input', () => {
   // error est_i − truth_i in place of est_i − θ): errors 0.5 and 0 -> bias 0.25, MCSE sd(0.5, 0)/√2
   // = 0.353553/1.414214 = 0.25; coverage: [0.8, 1.2] misses 0.5, [2, 4] holds 3 -> 0.5.
   it('uses each row\'s truth when the target varies by replicate', () => {
-    const a = row({ replicate: 1, parameter: 'year[y2]', estimate: 1, truth: 0.5, se: 0.1, lower: 0.8, upper: 1.2 });
-    const b = row({ replicate: 2, parameter: 'year[y2]', estimate: 3, truth: 3, se: 0.5, lower: 2, upper: 4 });
+    const a = row({ replicate: 1, parameter: 'year=y2', estimate: 1, truth: 0.5, se: 0.1, lower: 0.8, upper: 1.2 });
+    const b = row({ replicate: 2, parameter: 'year=y2', estimate: 3, truth: 3, se: 0.5, lower: 2, upper: 4 });
     const metrics = summarise([a, b]);
     const bias = metrics.find((m) => m.metric === 'bias')!;
     expect(bias.value).toBeCloseTo(0.25, 12);

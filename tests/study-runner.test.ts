@@ -21,7 +21,7 @@ const design = {
     { name: 'rain', varies: 'observation', normal: { mean: 0, sd: 1 } },
     { name: 'habitat', varies: 'site', categories: { dry: 0.5, wet: 0.5 } },
   ],
-  truth: { fixed: { intercept: 10, rain: 0.5, 'habitat[wet]': 1 }, sd: { site: 1, year: 0.5, residual: 2 } },
+  truth: { fixed: { intercept: 10, rain: 0.5, 'habitat=wet': 1 }, sd: { site: 1, year: 0.5, residual: 2 } },
   variants: [
     { name: 'year random', model: { response: 'y', fixed: ['rain', 'habitat'], groups: [{ factor: 'site', as: 'random' }, { factor: 'year', as: 'random' }] } },
     { name: 'year fixed', model: { response: 'y', fixed: ['rain', 'habitat'], groups: [{ factor: 'site', as: 'random' }, { factor: 'year', as: 'fixed' }] } },

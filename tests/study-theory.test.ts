@@ -24,7 +24,7 @@ describe('studies where theory gives the answer', () => {
       variants: [{ name: 'site fixed', model: { response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'fixed' }] } }],
     };
     const r = await runStudy(design, { out: out(), workers: 1 });
-    for (const parameter of ['intercept', 'x', 'site[site2]']) {
+    for (const parameter of ['intercept', 'x', 'site=site2']) {
       const c = pick(r.metrics!, 'site fixed', parameter, 'coverage');
       expect(Math.abs(c.value - 0.95)).toBeLessThan(3 * Math.sqrt((0.95 * 0.05) / c.n));
     }

@@ -334,7 +334,7 @@ def quadrat_fixed_name(name):
     if name.startswith("C(") and ")[T." in name:
         col = name[2:name.index(")")]
         level = name[name.index("[T.") + 3:-1]
-        return "%s[%s]" % (col, level)
+        return "%s=%s" % (col, level)
     return name
 
 

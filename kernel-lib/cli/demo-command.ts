@@ -27,7 +27,7 @@ export async function demoCommand(argv: string[], print: (s: string) => void): P
     return 130;
   }
   print(`\n${result.batchesRun ? `simulated and fitted in ${result.seconds.toFixed(1)} s` : 'results already on disk'}\n`);
-  const key = result.metrics.filter((m) => m.parameter === 'intercept' || m.parameter === 'grazing[ungrazed]' || m.parameter === 'sd(year)');
+  const key = result.metrics.filter((m) => m.parameter === 'intercept' || m.parameter === 'grazing=ungrazed' || m.parameter === 'sd(year)');
   print(formatMetricsTable(key, ['coverage', 'bias', 'rmse', 'width', 'power', 'sdMean', 'sdMedian']));
   const report = join(out, 'report.html');
   // the rows are already in memory: no need to read replicates.csv back

@@ -11,14 +11,14 @@
  *   keeps its reduced coding, so the columns stay linearly independent.
  * - A numeric column is one column. A text column, a column listed in `categorical`, an object
  *   term, or a grouping factor used in a fixed term, is a factor: one 0/1 column per level except
- *   the reference, named `habitat[wet]`. Reference: the one given, else the first level in plain
+ *   the reference, named `habitat=wet`. Reference: the one given, else the first level in plain
  *   code-unit string order (JavaScript `<`, so "10" sorts before "9"). Levels are found among the
  *   rows used, so a level seen only in dropped rows makes no empty column.
  * - `a:b` is the product of every column of `a` with every column of `b`, `a` outer:
- *   `x:z`, `x:habitat[wet]`, `habitat[wet]:season[dry]`. Each factor keeps its reduced
+ *   `x:z`, `x:habitat=wet`, `habitat=wet:season=dry`. Each factor keeps its reduced
  *   coding whatever other terms are present.
- * - A fixed grouping factor adds `site[B]` columns, then for each slope `x` the columns
- *   `x:site[B]`. Nested levels are labelled `outer/inner` (`plot[A/1]`).
+ * - A fixed grouping factor adds `site=B` columns, then for each slope `x` the columns
+ *   `x:site=B`. Nested levels are labelled `outer/inner` (`plot=A/1`).
  * - A random grouping factor becomes a RandomTerm (intercept, then slopes; values
  *   observation-major).
  *
@@ -45,7 +45,7 @@ interface CategoricalCoding {
   codes: Int32Array;
   /** Index of the reference level (its rows get all zeros); -1 for one column per level. */
   reference: number;
-  /** Names of the non-reference columns, `habitat[wet]`. */
+  /** Names of the non-reference columns, `habitat=wet`. */
   names: string[];
 }
 
@@ -283,7 +283,7 @@ function usedColumns(model: ResolvedModel): UsedColumn[] {
 
 /**
  * Reference level per column for fixed terms: an object term's reference, else the reference
- * of a fixed, non-nested grouping factor on the same column (so `x:site` matches `site[..]`).
+ * of a fixed, non-nested grouping factor on the same column (so `x:site` matches `site=..`).
  */
 function columnReferences(model: ResolvedModel): Map<string, string> {
   const refs = new Map<string, string>();

@@ -69,7 +69,7 @@ export function expectLabel(value: string, path: string): string {
   return value;
 }
 
-/** A JSON key inside an object, written for a path: `truth.fixed["habitat[wet]"]`. */
+/** A JSON key inside an object, written for a path: `truth.fixed["x:habitat=wet"]`. */
 export function keyPath(path: string, key: string): string {
   return /^[A-Za-z_][A-Za-z0-9_]*$/.test(key) ? `${path}.${key}` : `${path}[${JSON.stringify(key)}]`;
 }

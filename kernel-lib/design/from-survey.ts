@@ -4,7 +4,7 @@ import { isMissing } from '../data/missing';
 import { fitModel, type SurveyData } from '../fit/fit-model';
 import type { FitResult } from '../fit/result';
 import { parseModel } from '../model/parse';
-import { termColumns } from '../model/terms';
+import { involvesLevelOf, termColumns } from '../model/terms';
 import type { ModelSpec, ResolvedModel } from '../model/types';
 import type { CovariateSpec, FactorSpec, SurveyDesignSpec, VariantSpec } from './types';
 
@@ -113,12 +113,12 @@ export function designFromSurvey(data: SurveyData, model: ModelSpec | ResolvedMo
   }
 
   const fixedTruth: Record<string, number> = {};
-  const fixedGroupPrefixes = resolved.groups.filter((g) => g.as === 'fixed').map((g) => `${g.factor}[`);
+  const fixedGroups = resolved.groups.filter((g) => g.as === 'fixed').map((g) => g.factor);
   for (const r of fit.fixed) {
-    if (r.aliased || fixedGroupPrefixes.some((p) => r.term.startsWith(p) || r.term.includes(`:${p}`))) continue;
+    if (r.aliased || fixedGroups.some((f) => involvesLevelOf(r.term, f))) continue;
     fixedTruth[r.term] = Number(r.estimate.toPrecision(4));
   }
-  if (fixedGroupPrefixes.length) notes.push('factors fitted as fixed in the pilot get no random variation in the design (their level effects cannot carry over to new labels)');
+  if (fixedGroups.length) notes.push('factors fitted as fixed in the pilot get no random variation in the design (their level effects cannot carry over to new labels)');
   const sdTruth: Record<string, number> = {};
   const slopes: Record<string, Record<string, number>> = {};
   for (const r of fit.random) {

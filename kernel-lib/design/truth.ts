@@ -1,13 +1,12 @@
 /** The data-generating truth: fixed coefficients, random-effect SDs, slopes and correlations. */
 import { listNames } from '../model/errors';
-import { INTERACTION_SEPARATOR, INTERCEPT, levelName } from '../model/terms';
+import { bracketFormToCurrent, INTERACTION_SEPARATOR, INTERCEPT, levelName, splitLevelName } from '../model/terms';
 import { expectNonNegative, expectNumber, expectObject, fail, keyPath, rejectUnknownKeys } from './checks';
 import type { ColumnCatalog } from './columns';
 import type { ResponseFamily } from './family';
 import type { RandomTruth, ResolvedFactor, ResolvedTruth, TruthPart, TruthTerm } from './types';
 
 const TRUTH_KEYS = ['fixed', 'sd', 'slopes', 'correlations'];
-const LEVEL_PART = /^([^[\]]+)\[([^[\]]+)\]$/;
 
 export function parseTruth(
   value: unknown,
@@ -75,6 +74,10 @@ export function parseTruth(
 /** Parse one truth.fixed key into the columns and levels it multiplies. */
 function parseTruthTerm(name: string, value: number, path: string, catalog: ColumnCatalog): TruthTerm {
   if (name === INTERCEPT) return { name, canonical: INTERCEPT, value, parts: [] };
+  const current = bracketFormToCurrent(name);
+  if (current !== undefined) {
+    fail(`${path}: level coefficients are written column=level; write "${current}" instead of "${name}"`, path);
+  }
   const pieces = name.split(INTERACTION_SEPARATOR);
   if (pieces.length > 2) fail(`${path}: expected a main effect or a two-way product "a:b", got ${pieces.length} parts`, path);
   const parts = pieces.map((piece) => parsePart(piece, path, catalog));
@@ -91,12 +94,12 @@ function partName(p: TruthPart): string {
 
 function parsePart(piece: string, path: string, catalog: ColumnCatalog): TruthPart {
   if (piece === INTERCEPT) fail(`${path}: "intercept" cannot be part of a product`, path);
-  const m = LEVEL_PART.exec(piece);
-  if (m) {
-    const [, column, level] = m;
+  const split = catalog.numeric.includes(piece) || catalog.text.has(piece) ? undefined : splitLevelName(piece);
+  if (split) {
+    const { column, level } = split;
     const levels = catalog.text.get(column);
     if (levels === undefined) {
-      const hint = catalog.numeric.includes(column) ? ` ("${column}" is numeric: write it without [level])` : '';
+      const hint = catalog.numeric.includes(column) ? ` ("${column}" is numeric: write it without =level)` : '';
       fail(`${path}: no categorical column "${column}"${hint}; categorical columns: ${listNames([...catalog.text.keys()])}`, path);
     }
     if (!levels.includes(level)) fail(`${path}: column "${column}" has no level "${level}"; levels: ${listNames(levels)}`, path);
@@ -116,7 +119,7 @@ function parsePart(piece: string, path: string, catalog: ColumnCatalog): TruthPa
   }
   return fail(
     `${path}: matches no column of the data; numeric covariates: ${listNames(catalog.numeric)}; ` +
-      `categorical columns: ${listNames([...catalog.text.keys()])} (written as name[level])`,
+      `categorical columns: ${listNames([...catalog.text.keys()])} (written as column=level)`,
     path,
   );
 }

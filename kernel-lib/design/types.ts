@@ -73,8 +73,8 @@ export interface UnequalSpec {
 export interface TruthSpec {
   /**
    * Coefficients of the data-generating linear predictor, by coefficient name: "intercept",
-   * a numeric covariate ("rain"), a non-reference level ("habitat[wet]", "year[year2]"), or a
-   * two-way product of those ("rain:habitat[wet]"). Missing coefficients are 0.
+   * a numeric covariate ("rain"), a non-reference level ("habitat=wet", "year=year2"), or a
+   * two-way product of those ("rain:habitat=wet"). Missing coefficients are 0.
    */
   fixed?: Record<string, number>;
   /** Standard deviation of the random intercept by factor name, and family parameters (`residual`). */

@@ -5,7 +5,7 @@
  */
 import { describeValue, listNames } from '../model/errors';
 import { parseModel } from '../model/parse';
-import { INTERCEPT, NESTING_SEPARATOR, levelName, productName, termColumns } from '../model/terms';
+import { INTERCEPT, NESTING_SEPARATOR, involvesLevelOf, levelName, productName, termColumns } from '../model/terms';
 import type { FixedTerm, GroupSpec, ResolvedModel } from '../model/types';
 import { expectArray, expectObject, fail, rejectUnknownKeys } from './checks';
 import { allColumns, type ColumnCatalog } from './columns';
@@ -137,7 +137,7 @@ function referenceOf(column: string, model: ResolvedModel, levels: string[]): st
   return levels[0];
 }
 
-/** Names a term's columns expand to: the name itself if numeric, `col[level]` for non-reference levels if text. */
+/** Names a term's columns expand to: the name itself if numeric, `col=level` for non-reference levels if text. */
 function columnNames(column: string, model: ResolvedModel, levels: Map<string, string[]>, reference?: string): string[] {
   const ls = levels.get(column);
   if (ls === undefined) return [column];
@@ -191,7 +191,7 @@ function attachTruth(
   // (and products with them) and the main slopes of its random-slope covariates all absorb realised effects.
   const isRealised = (coef: string): boolean =>
     fixedRandom.length > 0 &&
-    (coef === INTERCEPT || slopeColumns.has(coef) || coef.split(':').some((part) => fixedRandom.some((f) => part.startsWith(`${f}[`))));
+    (coef === INTERCEPT || slopeColumns.has(coef) || fixedRandom.some((f) => involvesLevelOf(coef, f)));
 
   const truth: Record<string, number> = {};
   const realised: string[] = [];

@@ -29,7 +29,7 @@ export interface DesignMatrices {
   p: number;
   /** Fixed-effect design, row-major n × p. */
   X: Float64Array;
-  /** Coefficient names: "intercept", "x", "habitat[wet]", "x:habitat[wet]", "year[2021]". */
+  /** Coefficient names: "intercept", "x", "habitat=wet", "x:habitat=wet", "year=2021". */
   fixedNames: string[];
   /** Response. */
   y: Float64Array;

@@ -6,6 +6,7 @@ import { buildDesign } from '../data/build-design';
 import { toColumns, type Columns, type TableLike } from '../data/columns';
 import { fitDesign, INTERVAL_METHODS, type FitOptions, type IntervalMethod } from './fit-design';
 import { QuadratInputError } from '../model/errors';
+import { involvesLevelOf } from '../model/terms';
 
 export type SurveyData = Columns | readonly object[] | TableLike;
 
@@ -16,8 +17,7 @@ export type SurveyData = Columns | readonly object[] | TableLike;
  */
 export function aliasPriority(design: DesignMatrices, model: ResolvedModel): number[] {
   const fixedFactors = model.groups.filter((g) => g.as === 'fixed').map((g) => g.factor);
-  const isGroupColumn = (name: string) =>
-    fixedFactors.some((f) => name.startsWith(`${f}[`) || name.includes(`:${f}[`));
+  const isGroupColumn = (name: string) => fixedFactors.some((f) => involvesLevelOf(name, f));
   const first: number[] = [];
   const group: number[] = [];
   const rest: number[] = [];

@@ -1,7 +1,7 @@
 /**
  * Naming of fixed terms and coefficients, shared by the parser (validation) and the
- * design builder (column names). Coefficient names: "x", "habitat[wet]", "x:habitat[wet]",
- * "habitat[wet]:season[dry]", "site[B]", "plot[A/1]".
+ * design builder (column names). Coefficient names: "x", "habitat=wet", "x:habitat=wet",
+ * "habitat=wet:season=dry", "site=B", "plot=A/1".
  */
 import type { FixedTerm } from './types';
 
@@ -30,12 +30,48 @@ export function termLabel(term: FixedTerm): string {
   return typeof term === 'string' ? term : term.column;
 }
 
-/** Name of a treatment-coded dummy column: `habitat[wet]`. */
+/** Separator of a column and one of its levels in a coefficient name ("habitat=wet"). */
+export const LEVEL_SEPARATOR = '=';
+
+/** Name of a treatment-coded dummy column: `habitat=wet`. */
 export function levelName(column: string, level: string): string {
-  return `${column}[${level}]`;
+  return `${column}${LEVEL_SEPARATOR}${level}`;
 }
 
-/** Name of a product column: `x:habitat[wet]`. */
+/** Whether one part of a coefficient name is a level of `column` (`habitat=wet` for "habitat"). */
+export function isLevelOf(part: string, column: string): boolean {
+  return part.startsWith(`${column}${LEVEL_SEPARATOR}`);
+}
+
+/** Whether any part of a coefficient name is a level of `column` (`x:site=B` for "site"). */
+export function involvesLevelOf(name: string, column: string): boolean {
+  return name.split(INTERACTION_SEPARATOR).some((part) => isLevelOf(part, column));
+}
+
+/** The column and level of one part `habitat=wet`, or undefined for a plain column name. */
+export function splitLevelName(part: string): { column: string; level: string } | undefined {
+  const at = part.indexOf(LEVEL_SEPARATOR);
+  if (at <= 0 || at === part.length - 1) return undefined;
+  return { column: part.slice(0, at), level: part.slice(at + 1) };
+}
+
+/**
+ * The current spelling of a name written in the earlier bracket form (`habitat[wet]` →
+ * `habitat=wet`, `x:habitat[wet]` → `x:habitat=wet`), or undefined when no part uses brackets.
+ */
+export function bracketFormToCurrent(name: string): string | undefined {
+  const parts = name.split(INTERACTION_SEPARATOR);
+  let changed = false;
+  const out = parts.map((part) => {
+    const m = /^([^[\]]+)\[([^[\]]+)\]$/.exec(part);
+    if (!m) return part;
+    changed = true;
+    return levelName(m[1], m[2]);
+  });
+  return changed ? out.join(INTERACTION_SEPARATOR) : undefined;
+}
+
+/** Name of a product column: `x:habitat=wet`. */
 export function productName(left: string, right: string): string {
   return `${left}${INTERACTION_SEPARATOR}${right}`;
 }

@@ -1,6 +1,7 @@
 /** Fits side by side as table rows: fixed effects with their intervals, and the SDs of the variance components. */
 import type { FitResult } from '../fit/result';
 import { remlComparisonCaution } from '../fit/comparison';
+import { involvesLevelOf, isLevelOf } from '../model/terms';
 
 export interface NamedFitResult {
   name: string;
@@ -26,7 +27,7 @@ export interface FixedEffectTableRow {
 
 /**
  * One row per fit and fixed-effect term, terms in order of first appearance across the fits and
- * fits in the order given. Level terms of the `fixedFactors` (`year[2022]`) are left out unless
+ * fits in the order given. Level terms of the `fixedFactors` (`year=2022`) are left out unless
  * `includeGroupLevels`. `truth` (coefficient name -> value) adds a column when given. In a fit
  * where one of `fixedFactors` is entered as fixed, the intercept refers to that factor's
  * reference level, another quantity than the overall intercept: its truth is left empty and a
@@ -37,7 +38,7 @@ export function fixedEffectRows(
   options: { truth?: Readonly<Record<string, number>>; includeGroupLevels?: boolean; fixedFactors?: readonly string[] } = {},
 ): FixedEffectTableRow[] {
   const hidden = (term: string) =>
-    !options.includeGroupLevels && (options.fixedFactors ?? []).some((f) => term.startsWith(`${f}[`) || term.includes(`:${f}[`));
+    !options.includeGroupLevels && (options.fixedFactors ?? []).some((f) => involvesLevelOf(term, f));
   const terms: string[] = [];
   for (const { fit } of fits) for (const r of fit.fixed) if (!terms.includes(r.term) && !hidden(r.term)) terms.push(r.term);
   const rows: FixedEffectTableRow[] = [];
@@ -45,7 +46,7 @@ export function fixedEffectRows(
     for (const { name, fit } of fits) {
       const r = fit.fixed.find((x) => x.term === term);
       if (!r) continue;
-      const enteredFixed = (options.fixedFactors ?? []).filter((f) => fit.fixed.some((x) => x.term.startsWith(`${f}[`)));
+      const enteredFixed = (options.fixedFactors ?? []).filter((f) => fit.fixed.some((x) => isLevelOf(x.term, f)));
       const shifted = term === 'intercept' && enteredFixed.length > 0;
       const note = r.aliased
         ? 'not estimable (aliased)'
@@ -89,7 +90,7 @@ export function varianceRows(
     if (truthSd) row.truth = term === 'intercept' || factor === 'residual' ? truthSd[factor] ?? NaN : NaN;
     for (const { name, fit } of fits) {
       const r = fit.random.find((x) => label(x.factor, x.term) === key);
-      row[name] = r ? r.sd : fit.fixed.some((x) => x.term.startsWith(`${factor}[`)) ? 'fixed' : '–';
+      row[name] = r ? r.sd : fit.fixed.some((x) => isLevelOf(x.term, factor)) ? 'fixed' : '–';
     }
     return row;
   });

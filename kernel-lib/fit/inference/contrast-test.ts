@@ -6,6 +6,7 @@
 import type { DesignMatrices } from '../design';
 import type { FitResult } from '../result';
 import { QuadratInputError } from '../../model/errors';
+import { isLevelOf } from '../../model/terms';
 import { fSurvival } from '../../numeric/distributions';
 import { symmetricEigen } from '../../numeric/symmetric-eigen';
 import { contextFromFit, withResidualResponse, type InferenceContext } from './context';
@@ -31,13 +32,13 @@ export interface ContrastTestResult {
   warnings: string[];
 }
 
-/** Coefficient names of a term: the column itself (numeric) or every `term[level]` column (categorical). */
+/** Coefficient names of a term: the column itself (numeric) or every `term=level` column (categorical). */
 export function termCoefficients(names: readonly string[], term: string): string[] {
-  // "habitat" → habitat[wet], habitat[dry]; "x:habitat" → x:habitat[wet]; "habitat:season" → habitat[wet]:season[dry]
+  // "habitat" → habitat=wet, habitat=dry; "x:habitat" → x:habitat=wet; "habitat:season" → habitat=wet:season=dry
   const parts = term.split(':');
   const matches = (name: string) => {
     const np = name.split(':');
-    return np.length === parts.length && np.every((x, i) => x === parts[i] || (x.startsWith(`${parts[i]}[`) && x.endsWith(']')));
+    return np.length === parts.length && np.every((x, i) => x === parts[i] || isLevelOf(x, parts[i]));
   };
   const out = names.filter(matches);
   if (!out.length) {
@@ -46,7 +47,7 @@ export function termCoefficients(names: readonly string[], term: string): string
   return out;
 }
 
-/** Test every coefficient of one term (all its `term[level]` columns together). */
+/** Test every coefficient of one term (all its `term=level` columns together). */
 export function termTest(design: DesignMatrices, fit: FitResult, term: string, method: TestMethod = 'satterthwaite'): ContrastTestResult {
   const coefs = termCoefficients(design.fixedNames, term);
   const aliased = coefs.filter((c) => fit.fixed.find((r) => r.term === c)?.aliased);

@@ -23,7 +23,7 @@ export { remlComparisonCaution } from './fit/comparison';
 export type { FitResult, FixedEffectRow, VarianceComponentRow, CorrelationRow, ConditionalModeRow } from './fit/result';
 export type { DesignMatrices, RandomTerm } from './fit/design';
 export { contrastTest, termTest, termCoefficients, likelihoodRatioTest, bootstrapFit } from './fit/inference/index';
-export type { ContrastTestResult, LikelihoodRatioTest, BootstrapFitOptions } from './fit/inference/index';
+export type { ContrastTestResult, TermTestKind, TermTestResult, LikelihoodRatioTest, BootstrapFitOptions } from './fit/inference/index';
 
 // Survey designs and simulation
 export { parseDesign } from './design/parse';

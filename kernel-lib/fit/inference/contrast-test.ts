@@ -6,7 +6,7 @@
 import type { DesignMatrices } from '../design';
 import type { FitResult } from '../result';
 import { QuadratInputError } from '../../model/errors';
-import { isLevelOf } from '../../model/terms';
+import { isLevelOf, splitLevelName } from '../../model/terms';
 import { fSurvival } from '../../numeric/distributions';
 import { symmetricEigen } from '../../numeric/symmetric-eigen';
 import { contextFromFit, withResidualResponse, type InferenceContext } from './context';
@@ -47,18 +47,120 @@ export function termCoefficients(names: readonly string[], term: string): string
   return out;
 }
 
-/** Test every coefficient of one term (all its `term=level` columns together). */
-export function termTest(design: DesignMatrices, fit: FitResult, term: string, method: TestMethod = 'satterthwaite'): ContrastTestResult {
+/**
+ * What a term test tests when the term is part of an interaction. `marginal` (the default): the
+ * term's effect averaged over the levels of each factor it interacts with (equal weights, so in a
+ * balanced layout it is the classical ANOVA main-effect test; Searle 1987, Linear Models for
+ * Unbalanced Data, §4.6 on cell-means hypotheses) and at the mean of each numeric column it
+ * interacts with. `reference`: the term's own coefficients, i.e. its effect at the reference level
+ * of the other factor (and at 0 of a numeric partner), as treatment coding defines them.
+ * The marginal rows assume the treatment coding of data/buildDesign; for columns coded otherwise
+ * (sum-to-zero, built by hand) use `reference`.
+ */
+export type TermTestKind = 'marginal' | 'reference';
+
+export interface TermTestResult extends ContrastTestResult {
+  kind: TermTestKind;
+  /** One line per row of L, e.g. `habitat=wet + 1/3 habitat=wet:season=spring + ...`. */
+  contrast: string[];
+  /** What was tested, in words. */
+  description: string;
+}
+
+/**
+ * Test one term (all its `term=level` columns together): by default its marginal effect, averaged
+ * over the factors it interacts with (see TermTestKind); the result says which was done.
+ */
+export function termTest(
+  design: DesignMatrices, fit: FitResult, term: string, method: TestMethod = 'satterthwaite', kind: TermTestKind = 'marginal',
+): TermTestResult {
   const coefs = termCoefficients(design.fixedNames, term);
   const aliased = coefs.filter((c) => fit.fixed.find((r) => r.term === c)?.aliased);
   const usable = coefs.filter((c) => !aliased.includes(c));
   if (!usable.length) {
     throw new QuadratInputError(`term "${term}": every coefficient (${coefs.join(', ')}) is aliased; nothing to test`, { field: 'term' });
   }
-  const rows = usable.map((c) => design.fixedNames.map((n) => (n === c ? 1 : 0)));
-  const result = contrastTest(design, fit, rows, method);
+  const plan = kind === 'marginal' ? marginalRows(design, fit, usable) : { rows: usable.map((c) => unitRow(design, c)), partners: [] };
+  const result = contrastTest(design, fit, plan.rows, method);
   if (aliased.length) result.warnings.push(`term "${term}": ${aliased.join(', ')} aliased, left out of the test`);
-  return result;
+  return { ...result, kind, contrast: plan.rows.map((r) => contrastText(design.fixedNames, r)), description: describe(term, kind, plan.partners) };
+}
+
+function unitRow(design: DesignMatrices, coefficient: string): number[] {
+  return design.fixedNames.map((n) => (n === coefficient ? 1 : 0));
+}
+
+/** Column and level of one part of a coefficient name: `habitat=wet` → habitat, wet; `x` → x. */
+function nameParts(part: string): { column: string; level?: string } {
+  return splitLevelName(part) ?? { column: part };
+}
+
+interface Partner { column: string; weight: (part: string) => number; text: string }
+
+/**
+ * Rows of L for the marginal effect of each coefficient: the coefficient plus, for every
+ * interaction column that extends it by one factor F, that column times 1/(levels of F) (the
+ * reference level of F contributes 0), or times the mean of a numeric partner column.
+ */
+function marginalRows(design: DesignMatrices, fit: FitResult, coefs: string[]): { rows: number[][]; partners: Partner[] } {
+  const { fixedNames: names, X, n, p } = design;
+  const partners = new Map<string, Partner>();
+  const partnerOf = (column: string): Partner => {
+    let found = partners.get(column);
+    if (found) return found;
+    const j = names.indexOf(column);
+    if (j >= 0) {
+      // a numeric partner: its mean over the rows used
+      let sum = 0;
+      for (let i = 0; i < n; i++) sum += X[i * p + j];
+      const mean = sum / n;
+      found = { column, weight: () => mean, text: `at the mean of ${column} (${mean.toPrecision(4)})` };
+    } else {
+      const levels = new Set<string>();
+      for (const name of names) for (const part of name.split(':')) { const q = nameParts(part); if (q.column === column && q.level !== undefined) levels.add(q.level); }
+      const count = levels.size + 1; // products keep the reduced coding: the reference level has no column
+      found = { column, weight: () => 1 / count, text: `averaged over the ${count} levels of ${column}` };
+    }
+    partners.set(column, found);
+    return found;
+  };
+  const rows = coefs.map((c) => {
+    const row = unitRow(design, c);
+    const own = c.split(':');
+    names.forEach((name, j) => {
+      const parts = name.split(':');
+      if (parts.length !== own.length + 1 || fit.fixed[j]?.aliased) return;
+      const extra = parts.filter((x) => !own.includes(x));
+      if (extra.length !== 1 || !own.every((x) => parts.includes(x))) return;
+      const partner = partnerOf(nameParts(extra[0]).column);
+      row[j] = partner.weight(extra[0]);
+    });
+    return row;
+  });
+  const used = new Set<string>();
+  rows.forEach((row) => row.forEach((w, j) => {
+    if (w === 0 || coefs.includes(names[j])) return;
+    for (const part of names[j].split(':')) { const col = nameParts(part).column; if (partners.has(col)) used.add(col); }
+  }));
+  return { rows, partners: [...used].map((c) => partners.get(c)!) };
+}
+
+function describe(term: string, kind: TermTestKind, partners: Partner[]): string {
+  if (kind === 'reference') return `${term}: its own coefficients (treatment coding: the effect at the reference level of any factor it interacts with)`;
+  if (!partners.length) return `${term}: no interaction includes it, so its coefficients are its marginal effect`;
+  return `${term}: marginal effect, ${partners.map((q) => q.text).join(' and ')} (equal weights)`;
+}
+
+function contrastText(names: readonly string[], row: number[]): string {
+  const terms: string[] = [];
+  row.forEach((w, j) => {
+    if (w === 0) return;
+    const mag = Math.abs(w);
+    const inv = 1 / mag;
+    const coef = mag === 1 ? '' : Math.abs(inv - Math.round(inv)) < 1e-9 ? `1/${Math.round(inv)} ` : `${mag.toPrecision(4)} `;
+    terms.push(`${terms.length === 0 ? (w < 0 ? '-' : '') : w < 0 ? ' - ' : ' + '}${coef}${names[j]}`);
+  });
+  return terms.join('');
 }
 
 /**

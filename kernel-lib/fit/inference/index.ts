@@ -1,5 +1,5 @@
 /** Small-sample inference for fixed effects and intervals for variance components. */
-export { contrastTest, termTest, termCoefficients, type ContrastTestResult, type TestMethod } from './contrast-test';
+export { contrastTest, termTest, termCoefficients, type ContrastTestResult, type TestMethod, type TermTestKind, type TermTestResult } from './contrast-test';
 export { likelihoodRatioTest, type LikelihoodRatioTest } from './likelihood-ratio';
 export { bootstrapFit, type BootstrapFitOptions } from './bootstrap-fit';
 export { contextFromFit, type InferenceContext } from './context';

@@ -1,7 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { Matrix, inverse, solve } from 'ml-matrix';
 import { parseDesign } from '../kernel-lib/design/parse';
-import { realisedTruth } from '../kernel-lib/design/realised-truth';
+import { TargetProjector } from '../kernel-lib/design/realised-truth';
+import { buildDesign } from '../kernel-lib/data/build-design';
+import type { Columns } from '../kernel-lib/data/columns';
 import { createWorkspace, simulateColumns, simulateInto, simulationPlan, type SimulatedData } from '../kernel-lib/design/simulate';
 import { createStream } from '../kernel-lib/random/stream';
 
@@ -310,7 +312,7 @@ describe('simulateColumns: unequal group sizes', () => {
   });
 });
 
-describe('realisedTruth', () => {
+describe('TargetProjector', () => {
   it('matches an OLS fit when a random year factor enters as fixed', () => {
     // Least squares by ml-matrix (general-purpose library) on X = [1, rain, year2..year4]; with 200
     // observations per year its estimates lie within 4 SE of the realised contrasts, not of truth.fixed.
@@ -336,7 +338,9 @@ describe('realisedTruth', () => {
     }
     const beta = solve(X, y);
     const cov = inverse(X.transpose().mmul(X)).mul(0.25);
-    const truth = realisedTruth(variant, d);
+    const built = buildDesign(d.columns as Columns, variant.model);
+    const targets = new TargetProjector(design, variant).targets(d, built.X, built.n, built.p, built.rowIds, built.fixedNames, []);
+    const truth = Object.fromEntries(variant.coefficients.map((c, j) => [c, targets[j]]));
     const b = d.effects.year.values;
     expect(truth.intercept).toBeCloseTo(10 + b[0], 12);
     expect(truth['year=year3']).toBeCloseTo(b[2] - b[0], 12);

@@ -182,9 +182,10 @@ export interface ResolvedVariant {
   /** Truth of each coefficient from truth.fixed (0 where it names none). */
   truth: Record<string, number>;
   /**
-   * Coefficients whose target differs in each replicate: when a grouping factor that has random
-   * truth enters as fixed, its level coefficients (and the intercept) estimate realised effects
-   * (see realisedTruth in ./realised-truth), not the values in `truth`.
+   * Coefficients whose target can differ in each replicate: with a grouping factor entered as fixed,
+   * the intercept, its level coefficients and products with them, and the main slopes of its
+   * random-slope covariates estimate realised effects and absorbed covariates (see TargetProjector
+   * in ./realised-truth), not the values in `truth`.
    */
   realised: string[];
 }

@@ -5,7 +5,7 @@
  */
 import { describeValue, listNames } from '../model/errors';
 import { parseModel } from '../model/parse';
-import { INTERCEPT, NESTING_SEPARATOR, involvesLevelOf, levelName, productName, termColumns } from '../model/terms';
+import { INTERACTION_SEPARATOR, INTERCEPT, NESTING_SEPARATOR, levelName, productName, termColumns } from '../model/terms';
 import type { FixedTerm, GroupSpec, ResolvedModel } from '../model/types';
 import { expectArray, expectObject, fail, rejectUnknownKeys } from './checks';
 import { allColumns, type ColumnCatalog } from './columns';
@@ -49,7 +49,7 @@ export function parseVariants(value: unknown, path: string, ctx: VariantContext,
         const designLevel = ls.map((name) => own.indexOf(name.split(NESTING_SEPARATOR).pop()!));
         return { factor: g.factor, levels: ls, designLevel, reference: g.reference ?? ls[0] };
       });
-    return { name, model, coefficients, fixedGroups, ...attachTruth(name, p, model, coefficients, ctx, warnings) };
+    return { name, model, coefficients, fixedGroups, ...attachTruth(name, p, model, coefficients, levels, ctx, warnings) };
   });
 }
 
@@ -170,6 +170,19 @@ function fixedTermNames(term: FixedTerm, model: ResolvedModel, levels: Map<strin
 // ---------------------------------------------------------------------------------------------
 // Truth
 
+/**
+ * Factors whose levels are functions of the levels of the grouping factors a variant enters as
+ * fixed: each such factor and every factor it is nested in (through `within` in the survey design).
+ */
+export function absorbingFactors(factors: readonly ResolvedFactor[], fixedGroups: readonly string[]): Set<string> {
+  const within = new Map(factors.map((f) => [f.name, f.within]));
+  const out = new Set<string>();
+  for (const g of fixedGroups) {
+    for (let f: string | undefined = g; f !== undefined && !out.has(f); f = within.get(f)) out.add(f);
+  }
+  return out;
+}
+
 /** Order-free form of a coefficient name, as TruthTerm.canonical. */
 export function canonicalName(name: string): string {
   return name === INTERCEPT ? name : name.split(':').sort().join(':');
@@ -180,18 +193,41 @@ function attachTruth(
   path: string,
   model: ResolvedModel,
   coefficients: string[],
+  levels: Map<string, string[]>,
   ctx: VariantContext,
   warnings: string[],
 ): { truth: Record<string, number>; realised: string[] } {
   const byCanonical = new Map(ctx.truth.terms.map((t) => [t.canonical, t.value]));
   const randomTruth = new Map(ctx.truth.random.map((r) => [r.factor, r]));
-  const fixedRandom = model.groups.filter((g: GroupSpec) => g.as === 'fixed' && randomTruth.has(g.factor)).map((g) => g.factor);
-  const slopeColumns = new Set(fixedRandom.flatMap((f) => randomTruth.get(f)!.terms.slice(1)));
-  // With a random-truth factor entered as fixed, the intercept, that factor's level coefficients
-  // (and products with them) and the main slopes of its random-slope covariates all absorb realised effects.
+  const fixedGroups = model.groups.filter((g: GroupSpec) => g.as === 'fixed');
+  const fixedRandom = fixedGroups.filter((g) => randomTruth.has(g.factor)).map((g) => g.factor);
+  const absorbed = absorbingFactors(ctx.factors, fixedGroups.map((g) => g.factor));
+  const slopeColumns = new Set([...absorbed].flatMap((f) => randomTruth.get(f)?.terms.slice(1) ?? []));
+  const dummies = new Set(fixedGroups.flatMap((g) => columnNames(g.factor, model, levels, g.reference)));
+  // With a grouping factor entered as fixed, the intercept, that factor's level coefficients (and
+  // products with them) and the main slopes of its random-slope covariates estimate realised
+  // effects (design/realised-truth): their targets come from each replicate, not from truth.fixed.
   const isRealised = (coef: string): boolean =>
-    fixedRandom.length > 0 &&
-    (coef === INTERCEPT || slopeColumns.has(coef) || fixedRandom.some((f) => involvesLevelOf(coef, f)));
+    fixedGroups.length > 0 && (coef === INTERCEPT || slopeColumns.has(coef) || coef.split(INTERACTION_SEPARATOR).some((part) => dummies.has(part)));
+  // A random slope whose factor enters as fixed without an x:factor product: the variant fits one
+  // common slope, the pooled within-factor slope, and ignores how the slope varies between levels.
+  for (const f of fixedRandom) {
+    const r = randomTruth.get(f)!;
+    r.terms.slice(1).forEach((x, j) => {
+      if (r.sd[j + 1] === 0) return;
+      const hasProduct = coefficients.some((c) => {
+        const parts = c.split(INTERACTION_SEPARATOR);
+        return parts.includes(x) && parts.some((part) => dummies.has(part));
+      });
+      if (!hasProduct) {
+        warnings.push(
+          `${path} ("${name}"): "${f}" enters as fixed without a ${x}${INTERACTION_SEPARATOR}${f} product, so this variant ignores ` +
+            `how the slope of ${x} varies between levels of "${f}" (truth.slopes.${f}.${x}); its ${x} coefficient is scored ` +
+            `against the pooled within-${f} slope of each replicate`,
+        );
+      }
+    });
+  }
 
   const truth: Record<string, number> = {};
   const realised: string[] = [];

@@ -6,7 +6,6 @@ import { parentPort, workerData } from 'node:worker_threads';
 import { parseDesign } from '../design/parse';
 import { ReplicateRunner } from './replicate-runner';
 import { replicateRowsToCsv } from './replicate-csv';
-import { realisedTruthOf } from './realised-truth';
 import { writeBatch } from './study-folder';
 
 export interface BatchTask {
@@ -22,7 +21,7 @@ export type BatchReply = { ordinal: number; replicates: number } | { ordinal: nu
 if (parentPort) {
   const port = parentPort;
   const { design, folder } = workerData as { design: unknown; folder: string };
-  const runner = new ReplicateRunner(parseDesign(design), realisedTruthOf);
+  const runner = new ReplicateRunner(parseDesign(design));
   port.on('message', (task: BatchTask) => {
     try {
       const rows = runner.runBatch(task.scenario, task.from, task.to);

@@ -5,6 +5,7 @@ import { aliasPriority, checkInterval } from '../fit/fit-model';
 import type { FitResult } from '../fit/result';
 import type { DesignMatrices } from '../fit/design';
 import { expandGrid, type Scenario } from '../design/grid';
+import { TargetProjector } from '../design/realised-truth';
 import { createWorkspace, simulateInto, simulationPlan, type SimulatedData } from '../design/simulate';
 import type { ResolvedVariant, SurveyDesign } from '../design/types';
 import { streamFamily, type StreamFamily } from '../random/stream';
@@ -15,9 +16,6 @@ export function sdParameterName(factor: string, term: string): string {
   if (factor === 'residual') return 'sd(residual)';
   return term === 'intercept' ? `sd(${factor})` : `sd(${factor}:${term})`;
 }
-
-/** Extra per-replicate targets a variant can have (realised effects when a random factor enters as fixed). */
-export type RealisedTruthFn = (variant: ResolvedVariant, data: SimulatedData) => Record<string, number>;
 
 /**
  * Runs replicates of a study: simulate from the replicate's own stream, fit every variant, and
@@ -34,7 +32,10 @@ export class ReplicateRunner {
   /** Interval method of each variant, checked once: an unknown method is refused before anything runs. */
   private readonly intervals = new Map<string, IntervalMethod>();
 
-  constructor(readonly design: SurveyDesign, private readonly realisedTruth?: RealisedTruthFn) {
+  /** Target projector per variant of each scenario, built on first use. */
+  private readonly projectors = new Map<ResolvedVariant, TargetProjector>();
+
+  constructor(readonly design: SurveyDesign) {
     design.variants.forEach((v, i) => this.intervals.set(v.name, checkInterval(v.model.interval, `design.variants[${i}].model.interval`)));
     this.scenarios = expandGrid(design);
   }
@@ -74,13 +75,23 @@ export class ReplicateRunner {
     return order;
   }
 
+  private projectorFor(scenario: Scenario, variant: ResolvedVariant): TargetProjector {
+    let projector = this.projectors.get(variant);
+    if (!projector) {
+      projector = new TargetProjector(scenario.design, variant);
+      this.projectors.set(variant, projector);
+    }
+    return projector;
+  }
+
   private runReplicate(scenario: Scenario, scenarioIndex: number, replicate: number, rows: ReplicateRow[]): void {
     const data = this.simulate(scenarioIndex, replicate);
     for (const variant of scenario.design.variants) {
       let fit: FitResult | null = null;
+      let design: DesignMatrices | null = null;
       let reason = '';
       try {
-        const design = buildDesign(data.columns as Columns, variant.model);
+        design = buildDesign(data.columns as Columns, variant.model);
         fit = fitDesign(design, {
           estimation: variant.model.estimation,
           level: variant.model.level,
@@ -94,8 +105,11 @@ export class ReplicateRunner {
         reason = (e as Error).message.split('\n')[0];
         fit = null;
       }
-      const realised = fit && variant.realised.length && this.realisedTruth ? this.realisedTruth(variant, data) : null;
-      pushRows(rows, scenario, replicate, variant, fit, reason, realised);
+      const projector = this.projectorFor(scenario, variant);
+      const targets = fit && design && !reason
+        ? projector.targets(data, design.X, design.n, design.p, design.rowIds, design.fixedNames, fit.aliased)
+        : projector.fixedTruth;
+      pushRows(rows, scenario, replicate, variant, fit, reason, targets);
     }
   }
 }
@@ -117,15 +131,16 @@ function makeRow(
 
 function pushRows(
   rows: ReplicateRow[], scenario: Scenario, replicate: number, variant: ResolvedVariant,
-  fit: FitResult | null, reason: string, realised: Record<string, number> | null,
+  fit: FitResult | null, reason: string, targets: Float64Array,
 ): void {
   const status = fitStatus(fit, reason);
   const why = status === 'nonconverged' ? fit!.warnings.find((w) => w.startsWith('did not converge')) ?? 'did not converge' : reason;
   const key = scenario.key;
   const name = variant.name;
   const usable = status === 'ok' || status === 'singular';
-  for (const coef of variant.coefficients) {
-    const truth = realised && coef in realised ? realised[coef] : variant.truth[coef] ?? 0;
+  for (let c = 0; c < variant.coefficients.length; c++) {
+    const coef = variant.coefficients[c];
+    const truth = targets[c];
     let r = null;
     if (fit) for (const f of fit.fixed) if (f.term === coef) { r = f; break; }
     if (!fit || !r || status === 'failed') {

@@ -52,7 +52,7 @@ const METRICS: Record<MetricName, MetricInfo> = {
   mean: { name: 'Mean estimate', meaning: 'Mean estimate: average of the estimates over replicates.', reference: 'none' },
   bias: { name: 'Bias', meaning: 'Bias: mean estimate minus the true value.', reference: 'zero' },
   relativeBias: { name: 'Relative bias', meaning: 'Relative bias: bias divided by the true value.', reference: 'zero' },
-  empiricalSE: { name: 'Empirical SE', meaning: 'Empirical SE: standard deviation of the estimates over replicates.', reference: 'none' },
+  empiricalSE: { name: 'Empirical SE', meaning: 'Empirical SE: standard deviation of estimate minus true value over replicates.', reference: 'none' },
   modelSE: { name: 'Model SE', meaning: 'Model SE: root mean square of the standard errors the fits report.', reference: 'none' },
   relativeErrorModelSE: {
     name: 'Relative error of model SE (%)',
@@ -78,6 +78,11 @@ const METRICS: Record<MetricName, MetricInfo> = {
     reference: 'none',
   },
   failureShare: { name: 'Share of failed fits', meaning: 'Share of failed fits: fits that produced no estimates.', reference: 'none' },
+  notEstimableShare: {
+    name: 'Share not estimable',
+    meaning: 'Share not estimable: replicates where the coefficient was aliased with other columns.',
+    reference: 'none',
+  },
 };
 
 /** Metric names the builder accepts (every metric the study summary produces). */

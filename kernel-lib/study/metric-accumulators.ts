@@ -11,6 +11,8 @@ export class ParameterAccumulator {
   rows = 0;
   /** Rows dropped from estimate-based metrics because of status 'failed' or 'aliased'. */
   unusable = 0;
+  /** Of those, rows whose coefficient was not estimable (status 'aliased'). */
+  aliased = 0;
   /** Rows with a usable status but a non-finite estimate (also dropped, and reported). */
   nonFiniteEstimates = 0;
   /** Usable estimates whose se is NaN or infinite (dropped from modelSE only). */
@@ -29,8 +31,8 @@ export class ParameterAccumulator {
   readonly squaredError = new RunningMoments();
   /** se^2 over rows with finite estimate and se. */
   readonly seSquared = new RunningMoments();
-  /** Estimates over the same rows as seSquared, so ModSE and EmpSE share their replicates. */
-  readonly estimateWithSe = new RunningMoments();
+  /** estimate − truth over the same rows as seSquared, so ModSE and EmpSE share their replicates. */
+  readonly errorWithSe = new RunningMoments();
   readonly width = new RunningMoments();
   covered = 0;
   excludesZero = 0;
@@ -67,6 +69,7 @@ export class ParameterAccumulator {
     this.rows++;
     if (isUnusableStatus(row.status)) {
       this.unusable++;
+      if (row.status === 'aliased') this.aliased++;
       return;
     }
     const est = row.estimate;
@@ -85,7 +88,7 @@ export class ParameterAccumulator {
     const se = row.se;
     if (Number.isFinite(se)) {
       this.seSquared.add(se * se);
-      this.estimateWithSe.add(est);
+      this.errorWithSe.add(err);
     } else {
       this.missingSe++;
     }

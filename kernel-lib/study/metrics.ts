@@ -33,7 +33,8 @@ export type MetricName =
   | 'sdRMSE'
   | 'singularShare'
   | 'nonconvergedShare'
-  | 'failureShare';
+  | 'failureShare'
+  | 'notEstimableShare';
 
 export interface MetricRow {
   scenario: string;
@@ -62,6 +63,11 @@ export interface SummariseOptions {
    * intervals (interval excludes 0), so alpha must equal 1 - level when both are given.
    */
   alpha?: number;
+  /**
+   * Interval level of each variant by scenario key, then variant name (a variant's own `level`):
+   * coverage is compared with it and type I error with 1 − level. Groups not listed use `level`.
+   */
+  levels?: Record<string, Record<string, number>>;
 }
 
 /**
@@ -90,7 +96,13 @@ export function summarise(rows: readonly ReplicateRow[], options: SummariseOptio
   const out: MetricRow[] = [];
   for (const group of groups) {
     appendShareMetrics(out, group);
-    for (const p of group.parameterOrder) appendParameterMetrics(out, p, level, alpha);
+    const own = options.levels?.[group.scenario]?.[group.variant];
+    if (own !== undefined && !(own > 0 && own < 1)) {
+      throw new Error(`summarise: options.levels for scenario '${group.scenario}', variant '${group.variant}' must lie strictly between 0 and 1, got ${own}`);
+    }
+    for (const p of group.parameterOrder) {
+      appendParameterMetrics(out, p, own ?? level, own === undefined ? alpha : 1 - own);
+    }
   }
   return out;
 }
@@ -193,6 +205,10 @@ function appendShareMetrics(out: MetricRow[], group: FitStatusAccumulator): void
   out.push(proportionRow(base, 'failureShare', group.countAt(SEVERITY_FAILED), n));
 }
 
+function formatShare(x: number): string {
+  return `${(100 * x).toFixed(x < 0.01 ? 2 : 1)}%`;
+}
+
 function joinNotes(...notes: (string | undefined)[]): string | undefined {
   const kept = notes.filter((s): s is string => s !== undefined && s !== '');
   return kept.length === 0 ? undefined : kept.join('; ');
@@ -214,21 +230,36 @@ function push(
 
 function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level: number, alpha: number): void {
   const base: RowBase = { scenario: p.scenario, variant: p.variant, parameter: p.parameter, kind: p.kind };
+  // A coefficient the variant cannot estimate (aliased) keeps a row saying so, whatever else is missing.
+  let aliasedNote: string | undefined;
+  if (p.aliased > 0) {
+    const share = proportionRow(base, 'notEstimableShare', p.aliased, p.rows);
+    share.note = p.aliased === p.rows
+      ? 'not estimable: aliased with other columns in every replicate'
+      : `not estimable (aliased) in ${p.aliased} of ${p.rows} replicates`;
+    out.push(share);
+    if (p.aliased < p.rows) {
+      aliasedNote = `not estimable in ${p.aliased} of ${p.rows} replicates (${formatShare(p.aliased / p.rows)}): metrics use the others`;
+    }
+  }
   const n = p.estimate.n;
-  const excluded =
+  const nonFinite =
     p.nonFiniteEstimates > 0
       ? `${p.nonFiniteEstimates} row(s) with status ok/singular/nonconverged but a non-finite estimate excluded`
       : undefined;
+  const excluded = joinNotes(aliasedNote, nonFinite);
   if (n === 0) return;
   const fewNote = n < 2 ? 'n < 2: MCSE needs at least 2 replicates' : undefined;
   const estNote = joinNotes(excluded, fewNote);
   const isSd = p.kind === 'sd';
 
-  // Bias and its MCSE sqrt(sum (est_i - mean)^2 / (n(n-1))) = EmpSE/sqrt(n): Morris et al. 2019, Table 6.
-  // With a per-replicate target (realised effects) the spread that matters is that of the error.
-  const spread = p.truthVaries ? p.error : p.estimate;
-  const empSE = Math.sqrt(spread.variance());
-  const meanMcse = spread.standardErrorOfMean();
+  // One empirical SE for every metric that uses it: the spread of estimate − truth, which is
+  // Morris et al.'s EmpSE when the truth is fixed and, when the target varies by replicate
+  // (realised effects), the spread of the estimates around their own targets.
+  const empSE = Math.sqrt(p.error.variance());
+  // Mean of the estimates: MCSE from their own spread. Bias: MCSE EmpSE/sqrt(n) (Morris et al. 2019, Table 6).
+  const meanMcse = p.estimate.standardErrorOfMean();
+  const biasMcse = p.error.standardErrorOfMean();
   const bias = p.error.mean;
   const truth = p.truthVaries ? p.truths.mean : p.truth;
   const variesNote = p.truthVaries ? 'target varies by replicate (realised effects): bias, EmpSE and coverage use each replicate\'s truth' : undefined;
@@ -244,10 +275,10 @@ function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level
   }
 
   const truthZeroNote = truth === 0 ? 'truth is 0: relativeBias omitted' : undefined;
-  push(out, base, 'bias', bias, meanMcse, n, joinNotes(estNote, truthZeroNote, variesNote));
+  push(out, base, 'bias', bias, biasMcse, n, joinNotes(estNote, truthZeroNote, variesNote));
   if (truth !== 0 && !p.truthVaries) {
     // Relative bias (Morris et al. 2019, §5.2): bias and its MCSE both divided by |truth|.
-    push(out, base, 'relativeBias', bias / truth, meanMcse / Math.abs(truth), n, estNote);
+    push(out, base, 'relativeBias', bias / truth, biasMcse / Math.abs(truth), n, estNote);
   }
 
   // EmpSE and its MCSE EmpSE/sqrt(2(n-1)): Morris et al. 2019, Table 6.
@@ -309,9 +340,9 @@ function appendModelSEMetrics(out: MetricRow[], base: RowBase, p: ParameterAccum
 
   // Relative % error in ModSE = 100 (ModSE/EmpSE - 1), with MCSE
   // 100 (ModSE/EmpSE) sqrt(Var(se^2) / (4 m ModSE^4) + 1/(2(m-1))): Morris et al. 2019, Table 6.
-  // EmpSE is taken over the same m replicates as ModSE.
+  // EmpSE is taken over the same m replicates as ModSE, as the spread of estimate − truth.
   if (m < 2) return;
-  const empSE = Math.sqrt(p.estimateWithSe.variance());
+  const empSE = Math.sqrt(p.errorWithSe.variance());
   if (!(empSE > 0)) {
     const last = out[out.length - 1];
     last.note = joinNotes(last.note, 'EmpSE is 0: relativeErrorModelSE omitted');

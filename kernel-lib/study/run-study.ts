@@ -8,12 +8,12 @@ import { QuadratInputError } from '../model/errors';
 import { batchFileName, batchesOfShard, planBatches, type Batch, type Shard } from './batch-plan';
 import type { BatchReply, BatchTask } from './batch-worker';
 import { summarise, type MetricRow } from './metrics';
-import { realisedTruthOf } from './realised-truth';
 import { parseReplicateCsv, replicateRowsToCsv } from './replicate-csv';
 import type { ReplicateRow } from './replicate-row';
 import { ReplicateRunner } from './replicate-runner';
+import { variantLevels } from './variant-levels';
 import {
-  assembleReplicates, finishedBatches, fingerprintOf, openStudyFolder, writeAtomic, writeBatch, type StudyManifest,
+  assembleReplicates, finishedBatches, fingerprintOf, openStudyFolder, readManifest, writeAtomic, writeBatch, type StudyManifest,
 } from './study-folder';
 
 export interface StudyProgress {
@@ -128,7 +128,7 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
   const started = Date.now();
   const { design, source } = resolveStudyDesign(input, options.replicates);
   const batchSize = options.batchSize ?? DEFAULT_BATCH_SIZE;
-  const runner = new ReplicateRunner(design, realisedTruthOf);
+  const runner = new ReplicateRunner(design);
   const scenarios = runner.scenarios.map((s, index) => ({ index, key: s.key, values: s.values }));
   const warnings = [...design.warnings, ...preflight(runner)];
   const manifest: StudyManifest = {
@@ -235,7 +235,7 @@ export function finalise(folder: string, batches: Batch[]): { metrics: MetricRow
   const text = assembleReplicates(folder, batches);
   if (text === null) return null;
   const rows = parseReplicateCsv(text, 'replicates.csv');
-  const metrics = summarise(rows);
+  const metrics = summarise(rows, { levels: variantLevels(parseDesign(readManifest(folder).design)) });
   writeAtomic(join(folder, 'metrics.json'), JSON.stringify(metrics, null, 1));
   writeFileSync(join(folder, 'metrics.csv'), metricsToCsv(metrics));
   return { metrics, rows };

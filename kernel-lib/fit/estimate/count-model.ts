@@ -155,11 +155,14 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
   let evaluations = glmEvaluations;
 
   // stage 1: θ with (β, u) by joint penalised IRLS
-  laplace.reset(fitGlm.beta);
+  const restart = (): void => {
+    if (quad) { quad.beta.set(fitGlm.beta); quad.reset(); } else laplace.reset(fitGlm.beta);
+  };
+  restart();
   const stage1 = (theta: Float64Array): number => {
     evaluations++;
-    const v = laplace.solve(theta, true, k);
-    if (!Number.isFinite(v)) laplace.reset(fitGlm.beta);
+    const v = quad ? quad.jointLaplace(theta[0], k) : laplace.solve(theta, true, k);
+    if (!Number.isFinite(v)) restart();
     return v;
   };
   const thetaFixed = options.theta ? Float64Array.from(options.theta) : null;
@@ -178,8 +181,9 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
     }
   }
   stage1(theta);
-  const beta1 = Float64Array.from(laplace.beta);
-  const cov1 = laplace.fixedCovariance(theta, k);
+  const beta1 = Float64Array.from(quad ? quad.beta : laplace.beta);
+  const sdScratch = new Float64Array(quad ? quad.m : 0);
+  const cov1 = quad ? quad.fixedCovariance(theta[0], beta1, k, sdScratch) : laplace.fixedCovariance(theta, k);
   const scale = new Float64Array(p);
   for (let a = 0; a < p; a++) {
     const se = Math.sqrt(cov1[a * p + a]);
@@ -214,8 +218,7 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
   }
   for (let a = 0; a < p; a++) { lower[dTheta + a] = -1e4; upper[dTheta + a] = 1e4; }
   if (estimateK) { start[dim - 1] = Math.log(k); lower[dim - 1] = LOG_K_MIN; upper[dim - 1] = LOG_K_MAX; }
-  if (quad) quad.reset();
-  let res = nelderMeadBounded(objective, start, lower, upper, { step: 0.2, fTolerance: 1e-9, xTolerance: 1e-6 });
+  let res = nelderMeadBounded(objective, start, lower, upper, { step: 0.2, fTolerance: 1e-6, xTolerance: 1e-3 });
   let converged = res.converged;
   let reason = res.reason;
   // snap near-zero SDs to exactly zero when that is no worse, then polish the rest there
@@ -227,7 +230,7 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
       snapped = true;
     }
   }
-  const again = nelderMeadBounded(objective, res.x, lower, upper, { step: 0.05, fTolerance: 1e-10, xTolerance: 1e-7 });
+  const again = nelderMeadBounded(objective, res.x, lower, upper, { step: 0.01, fTolerance: 1e-10, xTolerance: 1e-6 });
   if (again.value <= res.value + (snapped ? 1e-8 : 0)) {
     res = again;
     converged = again.converged;
@@ -242,16 +245,28 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
     reason = laplace.lastFailure || 'the approximated likelihood could not be evaluated';
   }
 
-  // modes, covariance and fitted values at the estimate (penalised IRLS for u at fixed θ, β)
-  laplace.reset(beta);
-  laplace.solve(theta, false, k);
-  for (let a = 0; a < p; a++) laplace.beta[a] = beta[a];
-  const cov = laplace.fixedCovariance(theta, k);
-  const eta = Float64Array.from(laplace.eta);
+  // modes, covariance and fitted values at the estimate (the modes of the last evaluation)
+  let cov: Float64Array;
+  let eta: Float64Array;
+  let modes: Float64Array;
+  let modeSds: Float64Array;
+  if (quad) {
+    modeSds = new Float64Array(quad.m);
+    modes = Float64Array.from(quad.modes, (u) => theta[0] * u);
+    cov = quad.fixedCovariance(theta[0], beta, k, modeSds);
+    eta = quad.predictor(theta[0], beta);
+    layout.setTheta(theta);
+  } else {
+    laplace.reset(beta);
+    laplace.solve(theta, false, k);
+    for (let a = 0; a < p; a++) laplace.beta[a] = beta[a];
+    cov = laplace.fixedCovariance(theta, k);
+    eta = Float64Array.from(laplace.eta);
+    modes = Float64Array.from(laplace.b);
+    modeSds = conditionalSds(laplace, layout);
+  }
   const mu = new Float64Array(n);
   response.kernel(eta, k, 0, n, mu, null, null, null);
-  const modes = Float64Array.from(laplace.b);
-  const modeSds = conditionalSds(laplace, layout);
   let singular = false;
   for (const t of layout.terms) {
     const T = layout.templates[layout.terms.indexOf(t)];

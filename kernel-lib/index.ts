@@ -46,7 +46,10 @@ export { toWideTable } from './study/wide-table';
 export type { ReplicateRow } from './study/replicate-row';
 export { mergeShards } from './study/merge-shards';
 export { withScenarioFields, gridFields, scenarioFieldName } from './study/scenario-fields';
-export { readCoverage } from './study/reading';
+export {
+  readStudy, readingMarkdown, readingText, judgeCoverage, defaultTolerance, percentWithError, READING_CAUTIONS,
+} from './study/reading';
+export type { StudyReading, CellReading, CoverageJudgement, CoverageClass, ReadingOptions } from './study/reading';
 
 // Plots (rows in, Vega-Lite spec out) and display
 export * from './plots/index';

@@ -5,6 +5,7 @@ import { readFileSync } from 'node:fs';
 import { studyReportHtml } from '../display/study-report';
 import { readManifest } from '../study/study-folder';
 import { formatMetricsTable } from './metrics-table';
+import { readStudy, readingText } from '../study/reading';
 import { runStudyWithProgress } from './study-command';
 
 /** Project root: dist/cli/ or kernel-lib/cli/ are two levels below it. */
@@ -27,11 +28,14 @@ export async function demoCommand(argv: string[], print: (s: string) => void): P
     return 130;
   }
   print(`\n${result.batchesRun ? `simulated and fitted in ${result.seconds.toFixed(1)} s` : 'results already on disk'}\n`);
+  // the rows are already in memory: no need to read replicates.csv back
+  const results = { manifest: readManifest(out), metrics: result.metrics, replicates: result.replicates! };
+  // the answer first: year random or fixed, by the reading's stated rules
+  print(readingText(readStudy(result.metrics, results.manifest.scenarios)));
+  print('');
   const key = result.metrics.filter((m) => m.parameter === 'intercept' || m.parameter === 'grazing=ungrazed' || m.parameter === 'sd(year)');
   print(formatMetricsTable(key, ['coverage', 'bias', 'rmse', 'width', 'power', 'sdMean', 'sdMedian']));
   const report = join(out, 'report.html');
-  // the rows are already in memory: no need to read replicates.csv back
-  const results = { manifest: readManifest(out), metrics: result.metrics, replicates: result.replicates! };
   writeFileSync(report, await studyReportHtml(results, 'Demo study: year random or fixed? (invented survey)'));
   print(`\nAll metrics: ${relative(process.cwd(), join(out, 'metrics.csv')) || out}; per-replicate results: replicates.csv`);
   print(`HTML summary with charts: ${relative(process.cwd(), report)}`);

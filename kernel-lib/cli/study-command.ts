@@ -8,6 +8,8 @@ import { parseShard } from '../study/batch-plan';
 import type { MetricRow } from '../study/metrics';
 import { mergeShards } from '../study/merge-shards';
 import { runStudy } from '../study/run-study';
+import { readStudy, readingText } from '../study/reading';
+import { readManifest } from '../study/study-folder';
 import { formatMetricsTable } from './metrics-table';
 import { progressBar } from './progress-bar';
 
@@ -78,6 +80,9 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
     if (values.json) {
       print(JSON.stringify(metrics.map((m) => ({ ...m, value: Number.isFinite(m.value) ? m.value : null, mcse: Number.isFinite(m.mcse) ? m.mcse : null })), null, 1));
     } else {
+      // the answer first, then the table it comes from
+      print(readingText(readStudy(metrics, readManifest(positionals[0]).scenarios)));
+      print('');
       print(formatMetricsTable(metrics));
     }
     return 0;

@@ -5,7 +5,7 @@ import { sdRecovery } from '../plots/sd-recovery';
 import type { MetricRow } from '../study/metrics';
 import { parseReplicateCsv } from '../study/replicate-csv';
 import type { ReplicateRow } from '../study/replicate-row';
-import { readCoverage } from '../study/reading';
+import { readStudy, readingMarkdown, type ReadingOptions } from '../study/reading';
 import { gridFields, withScenarioFields } from '../study/scenario-fields';
 import { readManifest, type StudyManifest } from '../study/study-folder';
 import { htmlTable } from './html-table';
@@ -67,12 +67,13 @@ export async function studyChartSections(results: StudyResults, options: { param
 }
 
 /** A self-contained HTML summary of a finished study. */
-export async function studyReportHtml(results: StudyResults, title = 'Simulation study'): Promise<string> {
+export async function studyReportHtml(results: StudyResults, title = 'Simulation study', reading: ReadingOptions = {}): Promise<string> {
   const { manifest, metrics } = results;
   const design = manifest.design as { variants?: { name: string }[] };
-  const reading = readCoverage(metrics, manifest.scenarios);
   const shares = metrics.filter((m) => m.parameter === '*');
   const sections: ReportSection[] = [
+    // the answer first, before any table or chart
+    { heading: 'The answer in plain words', markdown: readingMarkdown(readStudy(metrics, manifest.scenarios, reading)) },
     {
       heading: 'What was simulated',
       markdown: [
@@ -82,7 +83,6 @@ export async function studyReportHtml(results: StudyResults, title = 'Simulation
         'Error bars and bands show ±2 Monte Carlo standard errors.',
       ].join('\n\n'),
     },
-    { heading: 'Reading the coverage', markdown: reading.map((l) => `- ${l}`).join('\n') || 'No intervals were studied.' },
     ...(await studyChartSections(results)),
     { heading: 'Fit problems', html: htmlTable(shares.map((m) => ({ scenario: m.scenario, variant: m.variant, metric: m.metric, value: m.value, mcse: m.mcse })), { mcse: true }) },
     {

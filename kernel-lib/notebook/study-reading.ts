@@ -1,12 +1,11 @@
 /**
- * Reading a coverage study for a decision: which analysis variants kept their intervals' coverage
- * in every scenario, and which interval method did best. Shortfall rule as in readCoverage:
- * coverage below level − 2·sqrt(level·(1 − level)/n), the Monte Carlo SE of a proportion at the
- * nominal level (Morris, White and Crowther 2019, Statistics in Medicine 38:2074, Table 6).
+ * Interval-method helpers for a coverage study: which variants kept their intervals' coverage in
+ * every scenario, and which interval method did best. A cell falls short when the study reading's
+ * rule (study/reading, judgeCoverage) says it undercovers.
  */
 import type { MetricRow } from '../study/metrics';
 import type { StudyManifest } from '../study/study-folder';
-import { coverageShortfallLimit as shortfallLimit, scenarioLabels } from '../study/reading';
+import { judgeCoverage, scenarioLabels } from '../study/reading';
 import { parseModel } from '../model/parse';
 import type { ModelSpec } from '../model/types';
 import type { SurveyDesignSpec, VariantSpec } from '../design/types';
@@ -33,10 +32,10 @@ export function withIntervalVariants(design: SurveyDesignSpec, method: string): 
 
 export interface CoverageVerdictRow {
   variant: string;
-  /** Scenario × parameter cells whose coverage is within 2 MCSE of the level or above it, "k of m". */
+  /** Scenario × parameter cells where coverage is not shown to fall short (judgeCoverage), "k of m". */
   'coverage kept': string;
   'lowest coverage': number;
-  /** Parameter and scenario of the lowest coverage (the last one listed when tied, as readCoverage reports it). */
+  /** Parameter and scenario of the lowest coverage (the last one listed when tied). */
   where: string;
   /** 'kept everywhere', 'falls short' or 'no intervals'. */
   verdict: string;
@@ -50,15 +49,14 @@ function coverageRows(metrics: readonly MetricRow[], parameters?: readonly strin
 export function coverageVerdicts(
   metrics: readonly MetricRow[],
   scenarios: StudyManifest['scenarios'],
-  options: { parameters?: readonly string[]; level?: number } = {},
+  options: { parameters?: readonly string[]; tolerance?: number } = {},
 ): CoverageVerdictRow[] {
-  const level = options.level ?? 0.95;
   const labels = scenarioLabels(scenarios);
   const rows = coverageRows(metrics, options.parameters);
   const variants = [...new Set(rows.map((m) => m.variant))];
   return variants.map((variant) => {
     const mine = rows.filter((m) => m.variant === variant && Number.isFinite(m.value) && m.n > 0);
-    const kept = mine.filter((m) => m.value >= shortfallLimit(level, m.n));
+    const kept = mine.filter((m) => judgeCoverage(m, options).class !== 'undercovers');
     const lowest = mine.reduce<MetricRow | null>((a, b) => (a === null || b.value <= a.value ? b : a), null);
     return {
       variant,
@@ -84,16 +82,15 @@ export interface IntervalChoice {
 export function favouredInterval(
   metrics: readonly MetricRow[],
   variants: readonly { name: string; model: ModelSpec }[],
-  options: { parameters?: readonly string[]; level?: number } = {},
+  options: { parameters?: readonly string[]; tolerance?: number } = {},
 ): IntervalChoice {
-  const level = options.level ?? 0.95;
   const methodOf = new Map(variants.map((v) => [v.name, parseModel(v.model).interval]));
   const rows = coverageRows(metrics, options.parameters).filter((m) => Number.isFinite(m.value) && m.n > 0);
   const methods = [...new Set(variants.map((v) => methodOf.get(v.name)!))];
   const scored = methods
     .map((method) => {
       const mine = rows.filter((m) => methodOf.get(m.variant) === method);
-      const short = mine.filter((m) => m.value < shortfallLimit(level, m.n)).length;
+      const short = mine.filter((m) => judgeCoverage(m, options).class === 'undercovers').length;
       const lowest = mine.reduce((a, m) => Math.min(a, m.value), Infinity);
       return { method, short, lowest, cells: mine.length };
     })
@@ -105,7 +102,7 @@ export function favouredInterval(
   return {
     method: best.method,
     reason:
-      `${best.method} intervals fell short of ${pct(level)} coverage in ${best.short} of ${best.cells} scenario × parameter cells ` +
+      `${best.method} intervals fell short of nominal coverage in ${best.short} of ${best.cells} scenario × parameter cells ` +
       `(lowest ${pct(best.lowest)})` + (others.length ? `; ${others.join('; ')}` : '') + '.',
   };
 }

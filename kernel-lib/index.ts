@@ -50,6 +50,13 @@ export {
   readStudy, readingMarkdown, readingText, judgeCoverage, defaultTolerance, percentWithError, READING_CAUTIONS,
 } from './study/reading';
 export type { StudyReading, CellReading, CoverageJudgement, CoverageClass, ReadingOptions } from './study/reading';
+export { runPlan, planSentence } from './study/plan-run';
+export type { PlanResult, RunPlanOptions } from './study/plan-run';
+export { parsePlan, GOAL_METRICS } from './study/plan-spec';
+export type { PlanSpec, PlanGoal } from './study/plan-spec';
+export { planCurve } from './plots/plan-curve';
+export type { PlanCurvePoint, PlanCurveOptions } from './plots/plan-curve';
+export { planReportHtml, planCurveSpecs } from './display/plan-report';
 
 // Plots (rows in, Vega-Lite spec out) and display
 export * from './plots/index';

@@ -12,12 +12,14 @@ import { readStudy, readingText } from '../study/reading';
 import { readManifest } from '../study/study-folder';
 import { formatMetricsTable } from './metrics-table';
 import { progressBar } from './progress-bar';
+import { PLAN_USAGE, planCommand } from './plan-command';
 
 export const STUDY_USAGE = [
   'quadrat study run <design.json> --out <folder> [--replicates R] [--workers W] [--shard i/N]',
   'quadrat study summary <folder> [--json]',
   'quadrat study merge <folder>... --out <folder>',
   'quadrat study report <folder> [--out <file.html>]',
+  PLAN_USAGE,
 ].join('\n  ');
 
 function intOption(value: string | undefined, name: string, min: number): number | undefined {
@@ -87,6 +89,7 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
     }
     return 0;
   }
+  if (sub === 'plan') return planCommand(rest, print);
   if (sub === 'merge') {
     const { values, positionals } = parseArgs({ args: rest, allowPositionals: true, strict: true, options: { out: { type: 'string' } } });
     if (!values.out) throw new QuadratInputError('study merge: --out <folder> is required', { field: '--out' });
@@ -104,5 +107,5 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
     print(`report written to ${file}`);
     return 0;
   }
-  throw new QuadratInputError(`study: expected "run", "summary", "merge" or "report"; usage:\n  ${STUDY_USAGE}`, { field: 'study' });
+  throw new QuadratInputError(`study: expected "run", "summary", "merge", "report" or "plan"; usage:\n  ${STUDY_USAGE}`, { field: 'study' });
 }

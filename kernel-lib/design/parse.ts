@@ -19,7 +19,7 @@ import { parseTruth } from './truth';
 import type { GridAxis, GridValue, ResolvedFactor, SurveyDesign, SurveyDesignSpec } from './types';
 import { parseVariants } from './variants';
 
-const DESIGN_KEYS = ['seed', 'replicates', 'factors', 'perCell', 'missing', 'response', 'family', 'covariates', 'unequal', 'truth', 'variants', 'grid'];
+const DESIGN_KEYS = ['seed', 'replicates', 'factors', 'perCell', 'missing', 'response', 'family', 'covariates', 'unequal', 'truth', 'variants', 'grid', 'plan'];
 
 export const DESIGN_DEFAULTS = { perCell: 1, missing: 0, response: 'y', family: 'gaussian' };
 

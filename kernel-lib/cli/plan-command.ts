@@ -1,0 +1,45 @@
+import { writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { parseArgs } from 'node:util';
+import { planCurveSpecs, planReportHtml } from '../display/plan-report';
+import { QuadratInputError } from '../model/errors';
+import { runPlan } from '../study/plan-run';
+import { readJsonFile } from './read-json-file';
+
+export const PLAN_USAGE = 'quadrat study plan <design.json> --out <folder> [--workers W]';
+
+/**
+ * `quadrat study plan`: the smallest value of the design's plan.vary that meets the plan's goals.
+ * Writes plan.json, one curve spec per goal (plan-curve-<k>.vl.json) and report.html; Ctrl-C stops
+ * after the current look, and the same command resumes from the replicates on disk.
+ */
+export async function planCommand(argv: string[], print: (s: string) => void): Promise<number> {
+  const { values, positionals } = parseArgs({
+    args: argv, allowPositionals: true, strict: true, options: { out: { type: 'string' }, workers: { type: 'string' } },
+  });
+  if (positionals.length !== 1) throw new QuadratInputError(`study plan: expected one design file; usage: ${PLAN_USAGE}`, { field: 'design' });
+  if (!values.out) throw new QuadratInputError('study plan: --out <folder> is required', { field: '--out' });
+  const workers = values.workers === undefined ? undefined : Number(values.workers);
+  if (workers !== undefined && !(Number.isInteger(workers) && workers >= 1)) {
+    throw new QuadratInputError(`--workers: expected a whole number ≥ 1, got "${values.workers}"`, { field: '--workers' });
+  }
+  const design = readJsonFile(positionals[0], 'design');
+  const controller = new AbortController();
+  const onSigint = () => {
+    controller.abort();
+    process.stderr.write('\ninterrupting after this look: replicates on disk are kept; run the same command again to resume\n');
+  };
+  process.once('SIGINT', onSigint);
+  try {
+    const result = await runPlan(design, { out: values.out, workers, signal: controller.signal, onProgress: (line) => print(`  ${line}`) });
+    planCurveSpecs(result).forEach((spec, j) => writeFileSync(join(values.out!, `plan-curve-${j + 1}.vl.json`), JSON.stringify(spec, null, 1)));
+    writeFileSync(join(values.out, 'report.html'), await planReportHtml(result));
+    print('');
+    print(result.sentence);
+    print(`${result.replicatesRun} replicates simulated in ${result.seconds.toFixed(1)} s; plan.json and report.html in ${values.out}`);
+    print('The answer holds only for the simulated assumptions; defer to a qualified statistician and local survey protocols.');
+    return result.interrupted ? 130 : 0;
+  } finally {
+    process.removeListener('SIGINT', onSigint);
+  }
+}

@@ -115,8 +115,18 @@ async function studyBench() {
   t0 = process.hrtime.bigint();
   execFileSync(process.execPath, [join(__dirname, '..', 'bin', 'quadrat.js'), 'demo', '--out', demoOut], { stdio: 'ignore' });
   const demoSeconds = Number(process.hrtime.bigint() - t0) / 1e9;
+  // a plan over 4 to 60 sites (random intercept, 4 observations per site), 2 workers, from an empty folder
+  const planOut = mkdtempSync(join(tmpdir(), 'quadrat-bench-plan-'));
+  t0 = process.hrtime.bigint();
+  execFileSync(process.execPath, [join(__dirname, '..', 'bin', 'quadrat.js'), 'study', 'plan', join(__dirname, 'plan-random-intercept.json'), '--out', planOut, '--workers', '2'], { stdio: 'ignore' });
+  const planSeconds = Number(process.hrtime.bigint() - t0) / 1e9;
+  const plan = JSON.parse(require('node:fs').readFileSync(join(planOut, 'plan.json'), 'utf8'));
   return {
     case: 'study: random intercept (8 sites x 6), simulate + fit random + fit fixed',
+    planWallSeconds: Number(planSeconds.toFixed(2)),
+    planAnswer: plan.smallest,
+    planDecided: plan.decided,
+    planReplicates: plan.evaluated.reduce((n, e) => n + e.replicates, 0),
     replicatesPerSecondInThread: Math.round(inThread),
     replicatesPerSecondOneWorker: Math.round(byWorkers[1]),
     replicatesPerSecondTwoWorkers: Math.round(byWorkers[2]),
@@ -184,6 +194,7 @@ async function main() {
     console.log(`  replicates per second: ${study.replicatesPerSecondInThread} in one thread without I/O, ${study.replicatesPerSecondOneWorker} with 1 worker, ${study.replicatesPerSecondTwoWorkers} with 2 workers (scaling ${study.scaling}x)`);
     console.log(`  then assembling replicates.csv and the metrics for ${study.replicates} replicates: ${study.finaliseSeconds} s`);
     console.log(`  demo study (npm start: 4 scenarios x 1000 replicates x 2 variants) wall time: ${study.demoWallSeconds} s including start-up`);
+    console.log(`  plan over 4 to 60 sites (random intercept, 4 per site, power of a site covariate >= 0.8, 2 workers): ${study.planWallSeconds} s wall time including start-up, ${study.planReplicates} replicates, answer ${study.planAnswer}${study.planDecided ? '' : ' (undecided)'}`);
   }
 }
 

@@ -369,8 +369,14 @@ describe('buildDesign: errors name the culprit', () => {
 
   it('non-numeric response names the 1-based row', () => {
     const e = inputError(() => design({ y: [1, 2, 'three', 4], x: [1, 2, 3, 4] }, { response: 'y', fixed: ['x'] }));
-    expect(e.message).toBe('response column "y": expected numbers, row 3 has "three"');
+    expect(e.message).toBe(
+      'response column "y": expected numbers, row 3 has "three"; if "three" marks a missing value, add it to the missing-value markers (CSV option missing, --missing), else fix the value',
+    );
     expect(e.row).toBe(3);
+    // numbers held as text (e.g. a whole column read as text): the row named is the first cell that is not a number
+    const t = inputError(() => design({ y: ['45.3', '41.8', '40', '39.9', '44', '?'] }, { response: 'y' }));
+    expect(t.row).toBe(6);
+    expect(t.message).toContain('row 6 has "?"');
     expect(inputError(() => design({ y: [1, Infinity, 3] }, { response: 'y' })).message).toBe(
       'response column "y": expected finite numbers, row 2 has Infinity',
     );
@@ -379,7 +385,7 @@ describe('buildDesign: errors name the culprit', () => {
   it('a fixed column mixing numbers and text', () => {
     const e = inputError(() => design({ y: [1, 2, 3], x: [1, '2,5', 3] }, { response: 'y', fixed: ['x'] }));
     expect(e.message).toBe(
-      'column "x": mixes numbers (row 1) and text (row 2 is "2,5"); fix the value or list the column in model.categorical to treat every value as a level',
+      'column "x": mixes numbers (row 1) and text (row 2 is "2,5"); "2,5" looks like a decimal comma: read the file with decimal "," (--decimal ,) or fix the value, or list the column in model.categorical to treat every value as a level',
     );
   });
 

@@ -2,7 +2,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'fs';
 import { tmpdir } from 'os';
 import { join } from 'path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { parseCsv, readCsvFile } from '../kernel-lib/data/csv';
+import { MISSING_MARKERS, parseCsv, readCsvFile } from '../kernel-lib/data/csv';
 import { inputError } from './helpers/input-error';
 
 
@@ -47,10 +47,13 @@ describe('parseCsv: values', () => {
     });
   });
 
-  it('parses a column as numbers only when every non-missing cell is numeric', () => {
-    const cols = parseCsv('a,b,c,d\n1,1,-2.5e-3, 7 \n.5,x,+3,8\n2.,3,1E2,\n');
+  it('parses a column as numbers when every non-missing cell is numeric, and keeps the odd cell of a mostly numeric column as text', () => {
+    const cols = parseCsv('a,b,c,d,e\n1,1,-2.5e-3, 7 ,p\n.5,x,+3,8,q\n2.,3,1E2,,4\n');
     expect(cols.a).toEqual([1, 0.5, 2]);
-    expect(cols.b).toEqual(['1', 'x', '3']);
+    // mostly numbers: the numbers stay numbers so that a model using "b" stops on row 2 (data-build-design tests)
+    expect(cols.b).toEqual([1, 'x', 3]);
+    // mostly text: every cell stays text, exactly as written
+    expect(cols.e).toEqual(['p', 'q', '4']);
     expect(cols.c).toEqual([-0.0025, 3, 100]);
     expect(cols.d).toEqual([7, 8, null]);
   });
@@ -113,5 +116,67 @@ describe('readCsvFile', () => {
 
     const missing = join(dir, 'nope.csv');
     expect(inputError(() => readCsvFile(missing)).message).toBe(`${missing}: cannot read the file (ENOENT)`);
+  });
+});
+
+describe('parseCsv: missing-value markers, decimal comma, other delimiters', () => {
+  it('reads the documented markers as missing, and a list of your own instead', () => {
+    // Project rule (MISSING_MARKERS); these markers are common practice, no source.
+    expect(MISSING_MARKERS).toEqual(['NA', 'na', 'N/A', 'n/a', 'NaN', '.', '-']);
+    expect(parseCsv('v\n1\nna\nn/a\nN/A\n.\n-\n 2 \n').v).toEqual([1, null, null, null, null, null, 2]);
+    // own list: "-999" is missing, "NA" is then text (and the column mostly numbers keeps it as text)
+    expect(parseCsv('v\n1\n-999\n3\nNA\n', { missing: ['-999'] }).v).toEqual([1, null, 3, 'NA']);
+    // empty cells stay missing whatever the list
+    expect(parseCsv('v,w\n1,\n2,3\n', { missing: [] }).w).toEqual([null, 3]);
+    expect(inputError(() => parseCsv('v\n1\n', { missing: 'NA' as unknown as string[] })).field).toBe('missing');
+  });
+
+  it('reads decimal commas with decimal "," (delimiter then ";" by default)', () => {
+    // European spreadsheet export convention: ";" between fields, "," as decimal mark (common practice, no source)
+    expect(parseCsv('x;y\n0,5;2\n-1,25e1;3\n', { decimal: ',' })).toEqual({ x: [0.5, -12.5], y: [2, 3] });
+    expect(inputError(() => parseCsv('x\n1\n', { decimal: ',', delimiter: ',' })).field).toBe('delimiter');
+    expect(inputError(() => parseCsv('x\n1\n', { decimal: 'comma' })).field).toBe('decimal');
+  });
+
+  it('refuses a column of decimal-comma numbers read with decimal ".", naming column, line and fix', () => {
+    const e = inputError(() => parseCsv('site\tcover\nA\t0,5\nB\t1\n', { delimiter: '\t' }));
+    expect(e.message).toBe('column "cover": numbers are written with a decimal comma (line 2 has "0,5"); read the file with decimal "," (command line: --decimal ,)');
+    expect(e.column).toBe('cover');
+  });
+
+  it('says when the header looks semicolon- or tab-separated', () => {
+    const e = inputError(() => parseCsv('site;cover;year\nA;0,5;2021\n'));
+    expect(e.message).toBe(
+      'csv: the header is one field holding 2 semicolons: the file looks semicolon-separated; read it with delimiter ";" (command line: --delimiter ;, and --decimal , if numbers are written "0,5")',
+    );
+    expect(inputError(() => parseCsv('site\tcover\nA\t1\n')).message).toContain('looks tab-separated');
+    // with the delimiter given, the same file reads
+    expect(parseCsv('site;cover\nA;0,5\n', { delimiter: ';', decimal: ',' })).toEqual({ site: ['A'], cover: [0.5] });
+  });
+});
+
+describe('readCsvFile: encodings and binary files', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'quadrat-enc-'));
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+  const file = (name: string, bytes: Buffer) => {
+    const path = join(dir, name);
+    writeFileSync(path, bytes);
+    return path;
+  };
+
+  it('names UTF-16 (with and without byte order mark), zip spreadsheets, binary and Latin-1 files', () => {
+    const text = 'site,cover\nA,1\n';
+    // Buffer.from(.., 'utf16le') is Node's UTF-16LE encoder; FF FE is the UTF-16LE byte order mark (Unicode §23.8)
+    const le = file('le.csv', Buffer.concat([Buffer.from([0xff, 0xfe]), Buffer.from(text, 'utf16le')]));
+    expect(inputError(() => readCsvFile(le)).message).toBe(`${le}: the file is UTF-16 text (little-endian byte order mark); save it as CSV with UTF-8 encoding ("CSV UTF-8") and read that file`);
+    expect(inputError(() => readCsvFile(file('nobom.csv', Buffer.from(text, 'utf16le')))).message).toContain('UTF-16 text without a byte order mark');
+    // "PK\x03\x04": zip local file header signature (PKWARE APPNOTE §4.3.7), the container of .xlsx/.ods
+    expect(inputError(() => readCsvFile(file('sheet.csv', Buffer.from([0x50, 0x4b, 3, 4, 20, 0, 0, 0])))).message).toContain('zip archive');
+    expect(inputError(() => readCsvFile(file('bin.csv', Buffer.from([0x7f, 0x45, 0x4c, 0x46, 0, 1, 2])))).message).toContain('binary, not CSV text (a zero byte at offset 4)');
+    // 0xE9 is "é" in Latin-1 (ISO 8859-1), invalid alone in UTF-8 (RFC 3629 §3)
+    const latin = file('latin.csv', Buffer.from([...Buffer.from('site,cover\nA,1\nPr'), 0xe9, ...Buffer.from(',2\n')]));
+    expect(inputError(() => readCsvFile(latin)).message).toBe(`${latin}: the file is not UTF-8 text (byte 0xE9 on line 3; Latin-1 or Windows-1252 encoding?); save it as CSV with UTF-8 encoding ("CSV UTF-8") and read that file`);
+    // valid UTF-8 with accents still reads
+    expect(readCsvFile(file('utf8.csv', Buffer.from('site,cover\nPré,1\n'))).site).toEqual(['Pré']);
   });
 });

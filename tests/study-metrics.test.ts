@@ -179,6 +179,10 @@ describe('summarise: hand-computed metrics on a 6-replicate table', () => {
     expect(t1.nominal).toBeCloseTo(0.05, 12);
     expect(t1.note).toContain('1 row(s) without a finite interval excluded');
     expect(has(metrics, 'siteRandom', 'x0', 'power')).toBe(false);
+    // Replicate 4 has an estimate but no interval: its own share 1/4 of the 4 usable estimates, binomial
+    // MCSE sqrt((1/4)(3/4)/4) (Morris et al. 2019, Table 6), and never counted as covered.
+    expectMetric(pick(metrics, 'siteRandom', 'x0', 'noIntervalShare'), 1 / 4, Math.sqrt(3 / 64), 4);
+    expect(has(metrics, 'siteRandom', 'slope', 'noIntervalShare')).toBe(false);
     // Coverage 2/3 (replicate 2 misses 0); widths 0.6, 0.4, 0.6, mean 1.6/3, squares of deviations
     // (1/15)^2 + (2/15)^2 + (1/15)^2 = 6/225, var 3/225, MCSE sqrt(3/225/3) = 1/15.
     expectMetric(pick(metrics, 'siteRandom', 'x0', 'coverage'), 2 / 3, Math.sqrt(2 / 27), 3);

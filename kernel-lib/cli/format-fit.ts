@@ -12,7 +12,7 @@ export function fitToJson(fit: FitResult, level: number) {
     level,
     fixed: fit.fixed.map((r) => ({
       term: r.term, estimate: num(r.estimate), se: num(r.se), lower: num(r.lower), upper: num(r.upper),
-      df: Number.isFinite(r.df) ? r.df : null, method: r.method, aliased: r.aliased,
+      df: Number.isFinite(r.df) ? r.df : null, method: r.method, aliased: r.aliased, ...(r.note ? { note: r.note } : {}),
     })),
     random: fit.random.filter((r) => r.factor !== 'residual').map((r) => ({
       factor: r.factor, term: r.term, sd: num(r.sd), ...(r.lower === undefined ? {} : { lower: num(r.lower), upper: num(r.upper ?? NaN) }),
@@ -33,7 +33,7 @@ export function fitToJson(fit: FitResult, level: number) {
 /** A readable summary of one fit for the terminal. */
 export function formatFit(fit: FitResult, level: number, title = 'Fit'): string {
   const levels = Object.entries(fit.levels).map(([f, k]) => `${f}: ${k} levels`).join(', ');
-  const status = [
+  const status = fit.failure ? `NOT FITTED: ${fit.failure}` : [
     fit.converged ? 'converged' : 'NOT CONVERGED',
     fit.singular ? 'singular (a variance at zero)' : 'not singular',
   ].join(' · ');

@@ -32,7 +32,7 @@ export async function main(argv: string[]): Promise<number> {
     return 2;
   }
   try {
-    return await command.run(rest, print);
+    return await command.run(joinNegativeValues(rest), print);
   } catch (e) {
     const err = e as Error & { code?: string };
     if (e instanceof QuadratInputError || err.code?.startsWith('ERR_PARSE_ARGS')) {
@@ -42,6 +42,23 @@ export async function main(argv: string[]): Promise<number> {
     process.stderr.write(`quadrat ${name}: ${err.message.split('\n')[0]}\n`);
     return 1;
   }
+}
+
+/**
+ * "--workers -1" as "--workers=-1": the argument parser would take "-1" for an option and answer
+ * "argument is ambiguous"; joined, the value reaches the option's own check and its message.
+ */
+export function joinNegativeValues(argv: string[]): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    const next = argv[i + 1];
+    if (/^--[a-z][a-z-]*$/.test(a) && next !== undefined && /^-[\d.]/.test(next)) {
+      out.push(`${a}=${next}`);
+      i++;
+    } else out.push(a);
+  }
+  return out;
 }
 
 if (require.main === module) {

@@ -4,6 +4,7 @@ import { readStudyFolder, studyReportHtml } from '../display/study-report';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { QuadratInputError } from '../model/errors';
+import { parseWholeNumber } from '../model/option-checks';
 import { parseShard } from '../study/batch-plan';
 import type { MetricRow } from '../study/metrics';
 import { mergeShards } from '../study/merge-shards';
@@ -23,10 +24,7 @@ export const STUDY_USAGE = [
 ].join('\n  ');
 
 function intOption(value: string | undefined, name: string, min: number): number | undefined {
-  if (value === undefined) return undefined;
-  const v = Number(value);
-  if (!Number.isInteger(v) || v < min) throw new QuadratInputError(`${name}: expected a whole number ≥ ${min}, got "${value}"`, { field: name });
-  return v;
+  return value === undefined ? undefined : parseWholeNumber(value, name, min);
 }
 
 /** Run a study with a progress bar; Ctrl-C stops after saving finished batches. */

@@ -1,14 +1,18 @@
 import type { DesignMatrices } from './design';
 import type { ConditionalModeRow, CorrelationRow, FitResult, FixedEffectRow, VarianceComponentRow } from './result';
 import { aliasingFromCrossProducts, restrictColumns } from './aliasing';
+import { aliasReasons } from './alias-reasons';
+import { checkFitOptions } from './check-fit-options';
+import type { IntervalMethod } from './interval-methods';
+import { degenerateReason } from './degenerate';
+import { applyDfFloor } from './df-floor';
+import { responseScale, scaledResponse, unscaleFit } from './response-scale';
 import { ProfiledDeviance } from './profiled-deviance';
 import { optimiseTheta, BOUNDARY_TOLERANCE } from './optimise-theta';
 import { normalQuantile, studentTQuantile } from '../numeric/distributions';
 import { SMALL_SAMPLE_METHODS, smallSampleIntervals, type BootstrapSettings, type SmallSampleMethod } from './inference/intervals';
 
-/** Interval methods the engine provides (the last four: ./inference). */
-export const INTERVAL_METHODS = ['wald', 'residual-t', ...SMALL_SAMPLE_METHODS] as const;
-export type IntervalMethod = (typeof INTERVAL_METHODS)[number];
+export { INTERVAL_METHODS, type IntervalMethod } from './interval-methods';
 
 export interface FitOptions {
   /** Default 'REML'. Ignored when the model has no random terms (ordinary least squares). */
@@ -42,20 +46,21 @@ export interface FitOptions {
  * and `warnings`.
  */
 export function fitDesign(design: DesignMatrices, options: FitOptions = {}): FitResult {
+  checkFitOptions(options);
   const level = options.level ?? 0.95;
   const requested = options.interval ?? 'wald';
-  if (!(INTERVAL_METHODS as readonly string[]).includes(requested)) {
-    throw new RangeError(`interval method "${requested}" is not available; choose one of: ${INTERVAL_METHODS.join(', ')}`);
-  }
+  const scale = responseScale(design.y);
+  if (scale !== 1) return unscaleFit(fitDesign(scaledResponse(design, scale), options), scale);
   const warnings = [...design.warnings];
   const ols = design.random.length === 0;
   const estimation = ols ? 'OLS' : options.estimation ?? 'REML';
+  const degenerate = degenerateReason(design);
+  if (degenerate) return emptyResult(design, estimation, [...warnings, degenerate], [], new Float64Array(0), 0, degenerate);
   let dev = new ProfiledDeviance(design, estimation === 'REML');
   const alias = aliasingFromCrossProducts(dev.crossProducts(), design.p, design.p + 1, options.aliasPriority);
   const aliasedNames = alias.aliased.map((j) => design.fixedNames[j]);
-  if (aliasedNames.length) {
-    warnings.push(`not estimable (aliased with other columns): ${aliasedNames.join(', ')}`);
-  }
+  const reasons = aliasReasons(design, dev.crossProducts(), design.p + 1, alias.estimable, alias.aliased);
+  for (const name of aliasedNames) warnings.push(`not estimable: ${name}: ${reasons[name]}`);
   const reduced = restrictColumns(design, alias.estimable);
   if (reduced !== design) dev = new ProfiledDeviance(reduced, estimation === 'REML');
   const { n } = reduced;
@@ -80,7 +85,7 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
     converged = false;
     const why = dev.lastFailure || 'the criterion could not be evaluated';
     if (!warnings.some((w) => w.includes(why))) warnings.push(`fit failed: ${why}`);
-    return emptyResult(design, estimation, warnings, aliasedNames, theta, evaluations, why);
+    return emptyResult(design, estimation, warnings, aliasedNames, theta, evaluations, why, reasons);
   }
 
   // σ²: REML and OLS divide by n − p, ML by n
@@ -121,6 +126,7 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
     warnings.push(...outcome.warnings);
     varianceIntervals = outcome.variance;
   }
+  warnings.push(...applyDfFloor(fixed));
 
   // variance components Σ = σ² T Tᵀ per term, reported in the design's term order
   const random: VarianceComponentRow[] = [];
@@ -191,7 +197,7 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
     estimation, observations: n, droppedRows: design.droppedRows.length, levels, fixed, fixedCov,
     random, correlations, residualSd: Math.sqrt(sigma2), logLik,
     aic: -2 * logLik + 2 * parameters, bic: -2 * logLik + Math.log(n) * parameters, parameters,
-    theta: Array.from(theta), deviance, converged, singular, failure: '', aliased: aliasedNames, warnings, evaluations,
+    theta: Array.from(theta), deviance, converged, singular, failure: '', aliased: aliasedNames, aliasReasons: reasons, warnings, evaluations,
     modes, fitted, residuals, rowIds: design.rowIds,
   };
 }
@@ -231,7 +237,7 @@ function conditionalModes(dev: ProfiledDeviance, b: Float64Array, sigma2: number
 
 function emptyResult(
   design: DesignMatrices, estimation: FitResult['estimation'], warnings: string[], aliased: string[],
-  theta: Float64Array, evaluations: number, failure: string,
+  theta: Float64Array, evaluations: number, failure: string, aliasReasons: Record<string, string> = {},
 ): FitResult {
   return {
     estimation, observations: design.n, droppedRows: design.droppedRows.length, levels: { ...design.levelCounts },
@@ -240,7 +246,7 @@ function emptyResult(
     })),
     fixedCov: new Float64Array(design.p * design.p).fill(NaN), random: [], correlations: [], residualSd: NaN,
     logLik: NaN, aic: NaN, bic: NaN, parameters: 0, theta: Array.from(theta), deviance: NaN, converged: false,
-    singular: false, failure, aliased, warnings, evaluations, modes: [], fitted: new Float64Array(0), residuals: new Float64Array(0),
+    singular: false, failure, aliased, aliasReasons, warnings, evaluations, modes: [], fitted: new Float64Array(0), residuals: new Float64Array(0),
     rowIds: design.rowIds,
   };
 }

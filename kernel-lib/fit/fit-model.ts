@@ -4,7 +4,8 @@ import type { FitResult } from './result';
 import { parseModel } from '../model/parse';
 import { buildDesign } from '../data/build-design';
 import { toColumns, type Columns, type TableLike } from '../data/columns';
-import { fitDesign, INTERVAL_METHODS, type FitOptions, type IntervalMethod } from './fit-design';
+import { fitDesign, type FitOptions } from './fit-design';
+import { checkFitOptions, checkInterval } from './check-fit-options';
 import { QuadratInputError } from '../model/errors';
 import { involvesLevelOf } from '../model/terms';
 
@@ -32,7 +33,8 @@ export function aliasPriority(design: DesignMatrices, model: ResolvedModel): num
 /** Fit one model description to a survey table (arquero table, array of records, or columns). */
 export function fitModel(data: SurveyData, model: ModelSpec | ResolvedModel | string, options: FitOptions = {}): FitResult {
   const resolved = parseModel(model);
-  const interval = checkInterval(options.interval ?? resolved.interval);
+  checkFitOptions(options);
+  const interval = checkInterval(options.interval ?? resolved.interval, options.interval === undefined ? 'model.interval' : 'options.interval');
   const estimation = options.estimation ?? resolved.estimation;
   if (interval === 'kenward-roger' && estimation === 'ML' && resolved.groups.some((g) => g.as === 'random')) {
     throw new QuadratInputError('model.interval: "kenward-roger" is defined for REML fits only, but model.estimation is "ML"; use estimation "REML" or interval "satterthwaite"', { field: 'model.interval' });
@@ -47,10 +49,4 @@ export function fitModel(data: SurveyData, model: ModelSpec | ResolvedModel | st
   });
 }
 
-/** The interval method named in a model, checked against what the engine provides. */
-export function checkInterval(name: string, field = 'model.interval'): IntervalMethod {
-  if (!(INTERVAL_METHODS as readonly string[]).includes(name)) {
-    throw new QuadratInputError(`${field}: interval method "${name}" is not available; expected one of: ${INTERVAL_METHODS.join(', ')}`, { field });
-  }
-  return name as IntervalMethod;
-}
+export { checkInterval } from './check-fit-options';

@@ -12,6 +12,8 @@ export interface FixedEffectRow {
   method: string;
   /** True when the column is a linear combination of earlier columns: estimate/se are NaN. */
   aliased: boolean;
+  /** Why lower/upper are NaN although the estimate is there (e.g. df below the floor, fit/df-floor.ts). */
+  note?: string;
 }
 
 export interface VarianceComponentRow {
@@ -76,6 +78,8 @@ export interface FitResult {
   failure: string;
   /** Names of aliased fixed-effect columns. */
   aliased: string[];
+  /** Why each aliased column cannot be estimated (an empty interaction cell, or the columns it combines). */
+  aliasReasons: Record<string, string>;
   warnings: string[];
   /** Number of deviance evaluations used by the optimiser. */
   evaluations: number;

@@ -18,6 +18,7 @@
  * - The interval method is any non-empty text; the fitting engine checks that it knows it.
  * - `intercept: false` needs at least one fixed term.
  */
+import { checkChoice, checkLevel } from './option-checks';
 import { QuadratInputError, describeValue, listNames } from './errors';
 import { INTERACTION_SEPARATOR, termColumns, termLabel } from './terms';
 import type {
@@ -252,11 +253,7 @@ function parseIntercept(value: unknown, path: string, fixedTerms: number): boole
 }
 
 function parseLevel(value: unknown, path: string): number {
-  if (value === undefined) return MODEL_DEFAULTS.level;
-  if (typeof value !== 'number' || !Number.isFinite(value) || value <= 0 || value >= 1) {
-    return fail(`${path}: expected a number strictly between 0 and 1 (e.g. 0.95), got ${describeValue(value)}`, path);
-  }
-  return value;
+  return value === undefined ? MODEL_DEFAULTS.level : checkLevel(value, path);
 }
 
 function parseReference(value: unknown, path: string): string {
@@ -320,10 +317,7 @@ function parseNameList(value: unknown, path: string): string[] {
 }
 
 function parseChoice<T extends string>(value: unknown, choices: readonly T[], fallback: T, path: string): T {
-  if (value === undefined) return fallback;
-  if (typeof value === 'string' && (choices as readonly string[]).includes(value)) return value as T;
-  const expected = choices.map((c) => `"${c}"`).join(' or ');
-  return fail(`${path}: expected ${expected}, got ${describeValue(value)}`, path);
+  return value === undefined ? fallback : checkChoice(value, choices, path);
 }
 
 function fail(message: string, field: string): never {

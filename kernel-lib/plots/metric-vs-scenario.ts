@@ -83,6 +83,11 @@ const METRICS: Record<MetricName, MetricInfo> = {
     meaning: 'Share not estimable: replicates where the coefficient was aliased with other columns.',
     reference: 'none',
   },
+  noIntervalShare: {
+    name: 'Share without an interval',
+    meaning: 'Share without an interval: fits that gave an estimate but no finite interval (e.g. df below the floor); never counted as covered.',
+    reference: 'none',
+  },
 };
 
 /** Metric names the builder accepts (every metric the study summary produces). */

@@ -3,6 +3,8 @@
  * of checkpointing and of sharding; its replicates are fixed by (scenario, batch) alone, so the
  * results never depend on the worker count, the order of completion or the sharding.
  */
+import { QuadratInputError } from '../model/errors';
+
 export interface Batch {
   /** Position in the study's batch list (scenario-major). */
   ordinal: number;
@@ -41,7 +43,7 @@ export function parseShard(text: string): Shard {
   const index = m ? Number(m[1]) : NaN;
   const count = m ? Number(m[2]) : NaN;
   if (!m || !(count >= 1) || !(index >= 1 && index <= count)) {
-    throw new Error(`--shard: expected "i/N" with 1 ≤ i ≤ N (e.g. "2/8"), got "${text}"`);
+    throw new QuadratInputError(`--shard: expected "i/N" with 1 ≤ i ≤ N (e.g. "2/8"), got "${text}"`, { field: '--shard' });
   }
   return { index, count };
 }

@@ -34,7 +34,8 @@ export type MetricName =
   | 'singularShare'
   | 'nonconvergedShare'
   | 'failureShare'
-  | 'notEstimableShare';
+  | 'notEstimableShare'
+  | 'noIntervalShare';
 
 export interface MetricRow {
   scenario: string;
@@ -82,7 +83,8 @@ export interface SummariseOptions {
  * omitted, never NaN.
  *
  * For kind 'fixed': mean, bias, relativeBias (omitted when truth is 0), empiricalSE, modelSE,
- * relativeErrorModelSE, rmse, coverage, width, and power (truth != 0) or typeIError (truth == 0).
+ * relativeErrorModelSE, rmse, coverage, width, and power (truth != 0) or typeIError (truth == 0);
+ * noIntervalShare (share of usable replicates with no finite interval) when there are any.
  * For kind 'sd': sdMean, sdMedian, bias, relativeBias, empiricalSE, modelSE,
  * relativeErrorModelSE, sdRMSE, coverage, width. No power/typeIError for SDs: 0 is on the
  * boundary of the parameter space, where "interval excludes 0" is not a valid test.
@@ -296,6 +298,12 @@ function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level
   push(out, base, isSd ? 'sdRMSE' : 'rmse', rmse, rmseMcse, n, joinNotes(estNote, rmseNote));
 
   const k = p.width.n;
+  if (p.missingInterval > 0 && (p.kind === 'fixed' || k > 0)) {
+    // usable estimates without an interval (e.g. df below the floor): their own share, never counted as covered
+    const share = proportionRow(base, 'noIntervalShare', p.missingInterval, n);
+    share.note = joinNotes('replicates whose fit gave no finite interval; left out of coverage, width and power', share.note);
+    out.push(share);
+  }
   if (k > 0) {
     const intervalNote =
       p.missingInterval > 0 ? `${p.missingInterval} row(s) without a finite interval excluded` : undefined;

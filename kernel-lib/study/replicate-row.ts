@@ -24,7 +24,7 @@ export interface ReplicateRow {
   df: number;
   /** 'failed' and 'aliased' rows carry NaN estimates. */
   status: ReplicateStatus;
-  /** '' unless failed/aliased/nonconverged. */
+  /** '' unless failed/aliased/nonconverged, or the interval is not available (e.g. df below the floor). */
   reason: string;
 }
 

@@ -146,9 +146,9 @@ function pushRows(
     if (!fit || !r || status === 'failed') {
       rows.push(makeRow(key, name, replicate, coef, 'fixed', truth, NaN, NaN, NaN, NaN, NaN, 'failed', why || `coefficient ${coef} not in the fit`));
     } else if (r.aliased) {
-      rows.push(makeRow(key, name, replicate, coef, 'fixed', truth, NaN, NaN, NaN, NaN, NaN, 'aliased', 'not estimable: aliased with other columns'));
+      rows.push(makeRow(key, name, replicate, coef, 'fixed', truth, NaN, NaN, NaN, NaN, NaN, 'aliased', `not estimable: ${fit.aliasReasons[coef] ?? 'a linear combination of other columns'}`));
     } else {
-      rows.push(makeRow(key, name, replicate, coef, 'fixed', truth, r.estimate, r.se, r.lower, r.upper, r.df, status, usable ? '' : why));
+      rows.push(makeRow(key, name, replicate, coef, 'fixed', truth, r.estimate, r.se, r.lower, r.upper, r.df, status, usable ? r.note ?? '' : why));
     }
   }
   for (const [factor, terms] of randomTermsOf(variant)) {

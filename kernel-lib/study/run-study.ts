@@ -1,5 +1,4 @@
 import { existsSync, writeFileSync } from 'node:fs';
-import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { parseDesign } from '../design/parse';
@@ -12,6 +11,7 @@ import { parseReplicateCsv, replicateRowsToCsv } from './replicate-csv';
 import type { ReplicateRow } from './replicate-row';
 import { ReplicateRunner } from './replicate-runner';
 import { variantLevels } from './variant-levels';
+import { checkStudyOptions } from './check-study-options';
 import {
   assembleReplicates, finishedBatches, fingerprintOf, openStudyFolder, readManifest, writeAtomic, writeBatch, type StudyManifest,
 } from './study-folder';
@@ -33,7 +33,7 @@ export interface RunStudyOptions {
   out: string;
   /** Override the design's replicate count. */
   replicates?: number;
-  /** Worker threads. Default: all cores. 1 runs in this thread. */
+  /** Worker threads. Default: all cores; more than the cores available are capped (with a warning). 1 runs in this thread. */
   workers?: number;
   /** Run only this slice; merge the shard folders afterwards. */
   shard?: Shard;
@@ -105,9 +105,10 @@ export function preflight(runner: ReplicateRunner, tries = 5): string[] {
           { field: 'design.variants' },
         );
       }
-      const aliased = [...new Set(mine.filter((r) => r.status === 'aliased').map((r) => r.parameter))];
-      if (aliased.length) {
-        warnings.push(`variant "${variant.name}" (scenario ${scenario.key}) cannot estimate ${aliased.join(', ')}: aliased with its fixed grouping columns; reported as not estimable`);
+      for (const r of mine) {
+        if (r.status !== 'aliased') continue;
+        // the reason names the real cause: an empty interaction cell, or the columns the coefficient combines
+        warnings.push(`variant "${variant.name}" (scenario ${scenario.key}) cannot estimate ${r.parameter}: ${r.reason.replace(/^not estimable: /, '')}; reported as not estimable`);
       }
     }
   });
@@ -126,11 +127,12 @@ function fingerprintOfResolved(design: SurveyDesign, source: unknown, batchSize:
 
 export async function runStudy(input: unknown, options: RunStudyOptions): Promise<RunStudyResult> {
   const started = Date.now();
+  const checked = checkStudyOptions(options as unknown as Record<string, unknown>);
   const { design, source } = resolveStudyDesign(input, options.replicates);
   const batchSize = options.batchSize ?? DEFAULT_BATCH_SIZE;
   const runner = new ReplicateRunner(design);
   const scenarios = runner.scenarios.map((s, index) => ({ index, key: s.key, values: s.values }));
-  const warnings = [...design.warnings, ...preflight(runner)];
+  const warnings = [...design.warnings, ...checked.warnings, ...preflight(runner)];
   const manifest: StudyManifest = {
     format: 'quadrat-study/1', fingerprint: fingerprintOfResolved(design, source, batchSize), design: source,
     replicates: design.replicates, batchSize, scenarios,
@@ -150,7 +152,7 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
     options.onProgress({ done, total, resumed, elapsedSeconds: elapsed, replicatesPerSecond: rate, secondsLeft: rate > 0 ? (total - done) / rate : NaN });
   };
   report();
-  const workers = Math.max(1, Math.min(options.workers ?? availableParallelism(), todo.length || 1));
+  const workers = Math.max(1, Math.min(checked.workers, todo.length || 1));
   let ran = 0;
   const runStarted = Date.now();
   const finish = (b: Batch, csv: string | null) => {

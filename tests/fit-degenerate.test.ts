@@ -1,9 +1,10 @@
 import { describe, expect, it } from 'vitest';
+import type { ModelSpec } from '../kernel-lib/model/types';
 import { fitModel } from '../kernel-lib/fit/fit-model';
 import { degenerateReason } from '../kernel-lib/fit/degenerate';
 import { handDesign } from './helpers/simple-design';
 
-const model = { response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'random' }] };
+const model: ModelSpec = { response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'random' }] };
 const rows = (y: (site: number, i: number) => number, x = (i: number) => i) =>
   Array.from({ length: 12 }, (_, k) => ({ site: `s${k % 4}`, x: x(Math.floor(k / 4)) + (k % 3) * 0.25, y: y(k % 4, Math.floor(k / 4)) }));
 
@@ -31,7 +32,7 @@ describe('degenerate data are reported with a reason, not fitted', () => {
 
   it('a column whose squares overflow is named', () => {
     // Number.MAX_VALUE ≈ 1.8e308 (ECMA-262 §6.1.6.1): (1e200)² overflows to Infinity.
-    const fit = fitModel(rows((s, i) => s + i * 0.5 + (i * s) % 3), model.fixed && { ...model }, {});
+    const fit = fitModel(rows((s, i) => s + i * 0.5 + (i * s) % 3), model);
     expect(fit.failure).toBe('');
     const big = fitModel(rows((s, i) => s + i * 0.5 + (i * s) % 3, (i) => i * 1e200), model);
     expect(big.failure).toMatch(/^values overflow: column x reaches 2\.\d+e\+200/);

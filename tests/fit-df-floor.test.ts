@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import type { ModelSpec } from '../kernel-lib/model/types';
 import { fitModel } from '../kernel-lib/fit/fit-model';
 import { DF_FLOOR } from '../kernel-lib/fit/df-floor';
 import { testRandom } from './helpers/simple-design';
@@ -13,7 +14,7 @@ function sites(count: number, grazed: number, seed: number) {
   }
   return rows;
 }
-const model = (interval: string) => ({ response: 'cover', fixed: ['grazing'], groups: [{ factor: 'site', as: 'random' }], interval });
+const model = (interval: string): ModelSpec => ({ response: 'cover', fixed: ['grazing'], groups: [{ factor: 'site', as: 'random' }], interval });
 
 describe('df floor of small-sample intervals', () => {
   it('with two sites and a site-level covariate the df collapse and the interval is not available, with the reason', () => {

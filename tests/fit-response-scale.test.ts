@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import type { ModelSpec } from '../kernel-lib/model/types';
 import { fitModel } from '../kernel-lib/fit/fit-model';
 import { responseScale } from '../kernel-lib/fit/response-scale';
 import { testRandom } from './helpers/simple-design';
@@ -15,7 +16,7 @@ function survey(seed: number, scale: number) {
   }
   return out;
 }
-const model = { response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'random' }], interval: 'satterthwaite' };
+const model: ModelSpec = { response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'random' }], interval: 'satterthwaite' };
 
 describe('responses of extreme magnitude', () => {
   it('scales only beyond 2^±200, by a power of two', () => {

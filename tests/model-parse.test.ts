@@ -19,6 +19,7 @@ describe('parseModel: defaults', () => {
   it('fills every default for a response-only model', () => {
     expect(parseModel({ response: 'cover' })).toEqual({
       response: 'cover',
+      family: 'gaussian',
       fixed: [],
       intercept: true,
       groups: [],
@@ -146,7 +147,7 @@ describe('parseModel: errors name the field', () => {
   it('lists allowed keys for an unknown key', () => {
     const top = inputError(() => parseModel({ ...base, fixd: ['x'] }));
     expect(top.message).toBe(
-      'model: unknown key "fixd"; allowed keys: response, fixed, intercept, groups, estimation, categorical, missing, interval, level',
+      'model: unknown key "fixd"; allowed keys: response, fixed, intercept, groups, estimation, categorical, missing, interval, level, family, trials, offset, integration, nodes',
     );
     const group = inputError(() => parseModel({ ...base, groups: [{ factor: 's', as: 'random', nested: 'x' }] }));
     expect(group.message).toBe(

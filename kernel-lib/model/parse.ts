@@ -21,6 +21,7 @@
 import { checkChoice, checkLevel } from './option-checks';
 import { QuadratInputError, describeValue, listNames } from './errors';
 import { INTERACTION_SEPARATOR, termColumns, termLabel } from './terms';
+import { parseResponseFields, responseFieldsToJson } from './response-fields';
 import type {
   CategoricalTerm,
   Estimation,
@@ -32,7 +33,7 @@ import type {
   ResolvedModel,
 } from './types';
 
-const MODEL_KEYS = ['response', 'fixed', 'intercept', 'groups', 'estimation', 'categorical', 'missing', 'interval', 'level'];
+const MODEL_KEYS = ['response', 'fixed', 'intercept', 'groups', 'estimation', 'categorical', 'missing', 'interval', 'level', 'family', 'trials', 'offset', 'integration', 'nodes'];
 const GROUP_KEYS = ['factor', 'as', 'within', 'slopes', 'correlated', 'reference'];
 const CATEGORICAL_TERM_KEYS = ['column', 'reference'];
 const ROLES: readonly GroupRole[] = ['random', 'fixed'];
@@ -64,16 +65,18 @@ export function parseModel(input: unknown, path = 'model'): ResolvedModel {
   const fixed = parseFixedTerms(obj.fixed, `${path}.fixed`, response);
   const groups = parseGroups(obj.groups, `${path}.groups`, response, fixed, `${path}.fixed`);
   const intercept = parseIntercept(obj.intercept, `${path}.intercept`, fixed.length);
+  const { estimation: familyEstimation, interval: familyInterval, ...responseFields } = parseResponseFields(obj, path, response, groups);
 
   return {
     response,
+    ...responseFields,
     fixed,
     intercept,
     groups,
-    estimation: parseChoice(obj.estimation, ESTIMATIONS, MODEL_DEFAULTS.estimation, `${path}.estimation`),
+    estimation: familyEstimation ?? parseChoice(obj.estimation, ESTIMATIONS, MODEL_DEFAULTS.estimation, `${path}.estimation`),
     categorical,
     missing: parseChoice(obj.missing, MISSING_POLICIES, MODEL_DEFAULTS.missing, `${path}.missing`),
-    interval: obj.interval === undefined ? MODEL_DEFAULTS.interval : expectName(obj.interval, `${path}.interval`, false),
+    interval: familyInterval ?? (obj.interval === undefined ? MODEL_DEFAULTS.interval : expectName(obj.interval, `${path}.interval`, false)),
     level: parseLevel(obj.level, `${path}.level`),
   };
 }
@@ -86,6 +89,7 @@ export function modelToJson(model: ModelSpec | ResolvedModel): ModelSpec {
   const m = parseModel(model);
   return {
     response: m.response,
+    ...responseFieldsToJson(m),
     fixed: m.fixed.map((t) => (typeof t === 'string' ? t : copyCategoricalTerm(t))),
     intercept: m.intercept,
     groups: m.groups.map(copyGroup),

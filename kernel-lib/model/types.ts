@@ -43,8 +43,28 @@ export interface CategoricalTerm {
  */
 export type FixedTerm = string | CategoricalTerm;
 
+/** Distribution of the response given the random effects (links: identity, log, logit, log). */
+export type ResponseFamilyName = 'gaussian' | 'poisson' | 'binomial' | 'negative-binomial';
+
+/** How a non-normal mixed model's likelihood is integrated over the random effects. */
+export type Integration = 'laplace' | 'quadrature';
+
 export interface ModelSpec {
   response: string;
+  /**
+   * Default 'gaussian'. 'poisson' and 'negative-binomial' (NB2, variance μ + μ²/k) for counts, log
+   * link; 'binomial' for detections (successes out of `trials`), logit link. Non-normal families are
+   * fitted by ML with Wald z intervals.
+   */
+  family?: ResponseFamilyName;
+  /** Binomial only: a column of trial counts or one positive whole number. Default 1 (presence/absence). */
+  trials?: string | number;
+  /** Count families: a numeric column added to the linear predictor, e.g. log(effort) for unequal effort. */
+  offset?: string;
+  /** Non-normal mixed models: 'laplace' (default, any grouping structure) or 'quadrature' (one random intercept). */
+  integration?: Integration;
+  /** Adaptive Gauss-Hermite nodes with 'quadrature'. Default 9. */
+  nodes?: number;
   /** Fixed terms. Default: []. */
   fixed?: FixedTerm[];
   /**
@@ -69,6 +89,14 @@ export interface ModelSpec {
 /** A model description with every default filled in. */
 export interface ResolvedModel {
   response: string;
+  family: ResponseFamilyName;
+  /** Binomial only (default 1). */
+  trials?: string | number;
+  offset?: string;
+  /** Non-normal families only. */
+  integration?: Integration;
+  /** With 'quadrature' only. */
+  nodes?: number;
   fixed: FixedTerm[];
   intercept: boolean;
   groups: GroupSpec[];

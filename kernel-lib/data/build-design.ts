@@ -37,6 +37,7 @@ import { columnLength, type Columns } from './columns';
 import { inferColumnKind, numericValues, type ColumnKind } from './column-kind';
 import { selectCompleteRows, type UsedColumn } from './complete-rows';
 import { responseShapeWarning } from './response-shape';
+import { countResponseColumns } from './count-response';
 import { codeColumn, nestFactor, sortFactor, type CodedFactor, type SortedFactor } from './factor';
 
 /** One factor of a fixed term after treatment coding. */
@@ -100,11 +101,11 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
   }
 
   const y = numericValues(data[model.response], rowIds, model.response, 'response column');
-  // a model description without a family is normal (the field arrives with the count families)
-  if (((model as { family?: string }).family ?? 'normal') === 'normal') {
+  if (model.family === 'gaussian') {
     const shape = responseShapeWarning(y, model.response);
     if (shape !== undefined) warnings.push(shape);
   }
+  const countColumns = countResponseColumns(data, model, rowIds, y);
 
   // Column kinds and codings, computed once per column.
   const groupFactors = new Set(model.groups.map((g) => g.factor));
@@ -236,7 +237,7 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
   for (const b of blocks) fillFixedBlock(X, p, n, b);
   for (const b of groupBlocks) fillGroupBlock(X, p, n, b);
 
-  return { n, p, X, fixedNames, y, random, levelCounts, droppedRows, rowIds, warnings };
+  return { n, p, X, fixedNames, y, random, levelCounts, droppedRows, rowIds, warnings, ...countColumns };
 }
 
 /**

@@ -43,4 +43,8 @@ export interface DesignMatrices {
   rowIds: Int32Array;
   /** Warnings raised while building (e.g. rows dropped). */
   warnings: string[];
+  /** Binomial models: trials per observation. */
+  trials?: Float64Array;
+  /** Count and detection models: offset added to the linear predictor, per observation. */
+  offset?: Float64Array;
 }

@@ -6,9 +6,9 @@ import { parseModel } from '../model/parse';
 import { QuadratInputError } from '../model/errors';
 import { checkLevel } from '../model/option-checks';
 import { fitToJson, formatFit } from './format-fit';
+import { COMMAND_HELP } from './help';
 
-export const FIT_USAGE =
-  'quadrat fit --data <file.csv> --model <model.json> [--json] [--ci <method>] [--level <0..1>] [--delimiter <char>] [--decimal <. or ,>] [--missing <marker,...>]';
+export const FIT_USAGE = `quadrat ${COMMAND_HELP.fit.usage}`;
 
 /** `quadrat fit`: fit one model description to a CSV file. */
 export function fitCommand(argv: string[], print: (s: string) => void): number {

@@ -1,38 +1,62 @@
 import { QuadratInputError } from '../model/errors';
-import { fitCommand, FIT_USAGE } from './fit-command';
+import { PROJECT_VERSION } from '../study/study-folder';
+import { fitCommand } from './fit-command';
 import { demoCommand } from './demo-command';
-import { studyCommand, STUDY_USAGE } from './study-command';
+import { designCommand } from './design-command';
+import { studyCommand } from './study-command';
+import { helpText, overviewText, SUBCOMMANDS, usageText } from './help';
 
 type Command = (argv: string[], print: (s: string) => void) => number | Promise<number>;
 
-const COMMANDS: Record<string, { run: Command; usage: string }> = {
-  fit: { run: fitCommand, usage: FIT_USAGE },
-  study: { run: studyCommand, usage: STUDY_USAGE },
-  demo: { run: demoCommand, usage: 'quadrat demo [--out <folder>]' },
+const COMMANDS: Record<string, Command> = {
+  fit: fitCommand,
+  study: studyCommand,
+  design: designCommand,
+  demo: demoCommand,
 };
 
-const USAGE = ['usage:', ...Object.values(COMMANDS).map((c) => `  ${c.usage}`)].join('\n');
+const isHelp = (a: string) => a === '--help' || a === '-h';
 
-/** Register a sub-command (used by modules that add commands, e.g. studies). */
-export function registerCommand(name: string, run: Command, usage: string): void {
-  COMMANDS[name] = { run, usage };
+/** The help a command line asks for ("study", "study run"), or undefined when it asks for none. */
+function helpRequest(name: string, rest: string[]): string | undefined {
+  const subs = SUBCOMMANDS[name];
+  const sub = subs?.includes(rest[0]) ? rest[0] : undefined;
+  if (subs && (rest.length === 0 || rest[0] === 'help')) return helpText(name);
+  if (!rest.some(isHelp)) return undefined;
+  return helpText(sub ? `${name} ${sub}` : name);
 }
 
 /** Run the command line; returns the exit code. Bad input: one line on stderr, exit code 2. */
 export async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
   const print = (s: string) => process.stdout.write(s.endsWith('\n') ? s : `${s}\n`);
-  if (!name || name === '--help' || name === '-h' || name === 'help') {
-    print(USAGE);
+  if (name === '--version' || name === '-V' || name === 'version') {
+    print(`quadrat ${PROJECT_VERSION}`);
+    return 0;
+  }
+  if (!name || isHelp(name) || name === 'help') {
+    if (name === 'help' && rest.length) {
+      const topic = rest.join(' ');
+      print(COMMANDS[rest[0]] ? helpText(topic) : overviewText());
+      return 0;
+    }
+    (name ? print : (s: string) => process.stderr.write(`${s}\n`))(overviewText());
     return name ? 0 : 2;
   }
   const command = COMMANDS[name];
   if (!command) {
-    process.stderr.write(`quadrat: unknown command "${name}"\n${USAGE}\n`);
+    process.stderr.write(`quadrat: unknown command "${name}"\n${usageText()}\n`);
     return 2;
   }
+  const help = helpRequest(name, rest);
+  if (help !== undefined) {
+    // "quadrat study" alone is a usage error; asking for help is not
+    const asked = rest.length > 0;
+    (asked ? print : (s: string) => process.stderr.write(`${s}\n`))(help);
+    return asked ? 0 : 2;
+  }
   try {
-    return await command.run(joinNegativeValues(rest), print);
+    return await command(joinNegativeValues(rest), print);
   } catch (e) {
     const err = e as Error & { code?: string };
     if (e instanceof QuadratInputError || err.code?.startsWith('ERR_PARSE_ARGS')) {

@@ -4,9 +4,10 @@ import { parseArgs } from 'node:util';
 import { planCurveSpecs, planReportHtml } from '../display/plan-report';
 import { QuadratInputError } from '../model/errors';
 import { runPlan } from '../study/plan-run';
+import { COMMAND_HELP } from './help';
 import { readJsonFile } from './read-json-file';
 
-export const PLAN_USAGE = 'quadrat study plan <design.json> --out <folder> [--workers W]';
+export const PLAN_USAGE = `quadrat ${COMMAND_HELP['study plan'].usage}`;
 
 /**
  * `quadrat study plan`: the smallest value of the design's plan.vary that meets the plan's goals.

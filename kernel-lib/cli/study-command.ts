@@ -13,15 +13,10 @@ import { readStudy, readingText } from '../study/reading';
 import { readManifest } from '../study/study-folder';
 import { formatMetricsTable } from './metrics-table';
 import { progressBar } from './progress-bar';
-import { PLAN_USAGE, planCommand } from './plan-command';
+import { planCommand } from './plan-command';
+import { COMMAND_HELP, SUBCOMMANDS } from './help';
 
-export const STUDY_USAGE = [
-  'quadrat study run <design.json> --out <folder> [--replicates R] [--workers W] [--shard i/N]',
-  'quadrat study summary <folder> [--json]',
-  'quadrat study merge <folder>... --out <folder>',
-  'quadrat study report <folder> [--out <file.html>]',
-  PLAN_USAGE,
-].join('\n  ');
+export const STUDY_USAGE = SUBCOMMANDS.study.map((s) => `quadrat ${COMMAND_HELP[`study ${s}`].usage}`).join('\n  ');
 
 function intOption(value: string | undefined, name: string, min: number): number | undefined {
   return value === undefined ? undefined : parseWholeNumber(value, name, min);

@@ -101,12 +101,12 @@ describe('printing', () => {
     const data = readCsvFile(CSV);
     const model = JSON.parse(readFileSync(MODEL_YEAR_FIXED, 'utf8'));
     const satt = formatFit(fitModel(data, model), 0.95);
-    expect(satt).toMatch(/Fixed effects \(95% satterthwaite intervals, t quantiles on df\)/);
+    expect(satt).toMatch(/Effects with 95% intervals \(Satterthwaite df\)/);
     expect(satt).toMatch(/\bdf\b/);
     const prof = fitModel(data, { ...model, interval: 'profile', level: 0.9 });
     const text = formatFit(prof, 0.9);
-    expect(text).toMatch(/Variance components \(90% profile intervals for the SD\)/);
-    expect(text).toMatch(/SD lower/);
+    expect(text).toMatch(/90% interval of SD/);
+    expect(text).toMatch(/Effects with 90% intervals \(profile likelihood\)/);
     const json = fitToJson(prof, 0.9);
     expect(json.random.every((r) => 'lower' in r && typeof r.lower === 'number')).toBe(true);
     expect(typeof json.residualSdLower).toBe('number');
@@ -116,6 +116,6 @@ describe('printing', () => {
     const bin = join(ROOT, 'bin', 'quadrat.js');
     const out = spawnSync(process.execPath, [bin, 'fit', '--data', CSV, '--model', MODEL_YEAR_FIXED, '--ci', 'kenward-roger', '--level', '0.9'], { encoding: 'utf8' });
     expect(out.status).toBe(0);
-    expect(out.stdout).toMatch(/90% kenward-roger intervals/);
+    expect(out.stdout).toMatch(/Effects with 90% intervals \(Kenward-Roger df and covariance\)/);
   });
 });

@@ -16,14 +16,19 @@ export function formatComparison(fits: { name: string; fit: FitResult }[]): stri
         : [term, name, r.estimate, r.se, r.lower, r.upper, r.upper - r.lower]);
     }
   }
-  const out = ['Fixed effects', renderTable(['term', 'model', 'estimate', 'SE', 'lower', 'upper', 'width'], rows)];
+  const out = ['Effects', renderTable(['effect', 'model', 'estimate', 'SE', 'lower', 'upper', 'width'], rows)];
   const vc: Cell[][] = [];
-  for (const { name, fit } of fits) for (const r of fit.random) vc.push([name, r.factor, r.term, r.sd]);
-  out.push('', 'Variance components (SD)', renderTable(['model', 'factor', 'term', 'SD'], vc));
+  for (const { name, fit } of fits) {
+    for (const r of fit.random) {
+      const source = r.factor === 'residual' ? 'within levels (residual)' : r.term === 'intercept' ? `between levels of ${r.factor}` : `slope of ${r.term}, between levels of ${r.factor}`;
+      vc.push([name, source, r.sd]);
+    }
+  }
+  out.push('', 'Where the variation lies (SD)', renderTable(['model', 'source', 'SD'], vc));
   const info: Cell[][] = fits.map(({ name, fit }) => [
     name, fit.estimation, fit.converged ? 'yes' : 'NO', fit.singular ? 'yes' : 'no', fit.logLik, fit.aic,
   ]);
-  out.push('', renderTable(['model', 'estimation', 'converged', 'singular', 'logLik', 'AIC'], info));
+  out.push('', renderTable(['model', 'estimation', 'converged', 'variance at zero', 'log-likelihood', 'AIC'], info));
   const caution = remlComparisonCaution(fits.map((f) => f.fit));
   if (caution) out.push('', caution);
   return out.join('\n');

@@ -40,7 +40,7 @@ export function fitCommand(argv: string[], print: (s: string) => void): number {
   }
   const model = parseModel(raw);
   const fit = fitModel(data, model);
-  print(values.json ? JSON.stringify(fitToJson(fit, model.level), null, 2) : formatFit(fit, model.level, `Fit of ${values.model} to ${values.data}`));
+  print(values.json ? JSON.stringify(fitToJson(fit, model.level), null, 2) : formatFit(fit, model.level, `${model.response}: fit of ${values.model} to ${values.data}`, model));
   return fit.failure ? 1 : 0;
 }
 

@@ -15,7 +15,9 @@ export function formatNumber(value: number | null | undefined, digits = 4): stri
 
 export function renderTable(header: string[], rows: Cell[][], indent = '  '): string {
   const text = rows.map((r) => r.map((c) => (typeof c === 'number' ? formatNumber(c) : c ?? '')));
-  const numeric = header.map((_, j) => rows.some((r) => typeof r[j] === 'number'));
+  // right-align columns of numbers, including numbers already written as text ("6", "4.0")
+  const numberLike = (c: Cell) => typeof c === 'number' || (typeof c === 'string' && /^-?[\d.]+$|^∞$/.test(c));
+  const numeric = header.map((_, j) => rows.some((r) => numberLike(r[j])) && rows.every((r) => numberLike(r[j]) || typeof r[j] === 'number' || !r[j]));
   const widths = header.map((h, j) => Math.max(h.length, ...text.map((r) => r[j].length)));
   const line = (cells: string[]) =>
     indent + cells.map((c, j) => (numeric[j] ? c.padStart(widths[j]) : c.padEnd(widths[j]))).join('  ').trimEnd();

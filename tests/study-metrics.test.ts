@@ -481,3 +481,61 @@ describe('formatMetric and toWideTable', () => {
     expect('typeIError' in slopeRow).toBe(false);
   });
 });
+
+describe('summarise: a target that varies by replicate (hand-computed)', () => {
+  // Four replicates of a coefficient whose target is the replicate's realised value.
+  // truth 10, 12, 9, 11; estimate 10.5, 11, 9.5, 12; se 0.6, 0.5, 0.7, 0.4; errors 0.5, -1, 0.5, 1.
+  const truths = [10, 12, 9, 11];
+  const estimates = [10.5, 11, 9.5, 12];
+  const ses = [0.6, 0.5, 0.7, 0.4];
+  const rows = truths.map((t, i) =>
+    row({ replicate: i + 1, parameter: 'intercept', truth: t, estimate: estimates[i], se: ses[i], lower: estimates[i] - 2 * ses[i], upper: estimates[i] + 2 * ses[i] }),
+  );
+  const metrics = summarise(rows);
+
+  it('takes EmpSE and the relative error of the model SE from the spread of estimate - truth', () => {
+    // Morris, White and Crowther 2019, Table 6, with θ̂_i − θ_i in place of θ̂_i (hand arithmetic):
+    // mean error 0.25, squared deviations 0.0625 + 1.5625 + 0.0625 + 0.5625 = 2.25, EmpSE sqrt(2.25/3) = 0.866025,
+    // MCSE EmpSE/sqrt(2·3) = 0.353553.
+    expectMetric(pick(metrics, 'siteRandom', 'intercept', 'empiricalSE'), 0.8660254037844386, 0.3535533905932738, 4);
+    // ModSE sqrt((0.36 + 0.25 + 0.49 + 0.16)/4) = sqrt(0.315) = 0.561249; relative error 100(0.561249/0.866025 − 1)
+    // = −35.1926%; MCSE 100·ratio·sqrt(Var(se²)/(4·4·ModSE⁴) + 1/(2·3)) with Var(se²) = 0.0609/3 = 0.0203.
+    expectMetric(pick(metrics, 'siteRandom', 'intercept', 'modelSE'), 0.5612486080160911, Math.sqrt(0.0203 / (4 * 4 * 0.315)), 4);
+    expectMetric(pick(metrics, 'siteRandom', 'intercept', 'relativeErrorModelSE'), -35.1925930159214, 27.453664668012966, 4);
+  });
+
+  it('gives the mean estimate the MCSE of the estimates and the bias that of the errors', () => {
+    // Mean 10.75; squared deviations of the estimates 0.0625 + 0.0625 + 1.5625 + 1.5625 = 3.25:
+    // MCSE sqrt(3.25/3/4) = 0.520416. Bias 0.25 with MCSE sqrt(0.75/4) = 0.433013 (Morris et al. 2019, Table 6).
+    expectMetric(pick(metrics, 'siteRandom', 'intercept', 'mean'), 10.75, 0.5204164998665332, 4);
+    expectMetric(pick(metrics, 'siteRandom', 'intercept', 'bias'), 0.25, 0.4330127018922193, 4);
+  });
+});
+
+describe('summarise: coefficients not estimable and variant levels', () => {
+  it('gives an aliased coefficient a not-estimable share, and a note when only some replicates are aliased', () => {
+    const metrics = summarise(studyRows());
+    // x0 is aliased in replicate 3 of the 5 replicates whose fit ran (replicate 6 failed): share 1/5,
+    // binomial MCSE sqrt(p(1-p)/5) (Morris et al. 2019, Table 6).
+    const share = pick(metrics, 'siteRandom', 'x0', 'notEstimableShare');
+    expectMetric(share, 1 / 5, Math.sqrt((1 / 5) * (4 / 5) / 5), 5);
+    expect(pick(metrics, 'siteRandom', 'x0', 'bias').note).toMatch(/not estimable in 1 of 5 replicates \(20\.0%\)/);
+    // A coefficient aliased in every replicate still has a row that says so.
+    const always = [1, 2, 3].map((r) => row({ replicate: r, parameter: 'elevation', truth: 1.5, status: 'aliased', reason: 'not estimable' }));
+    const m = summarise(always);
+    const row0 = pick(m, 'siteRandom', 'elevation', 'notEstimableShare');
+    expect(row0.value).toBe(1);
+    expect(row0.note).toMatch(/not estimable: aliased with other columns in every replicate/);
+    expect(m.filter((x) => x.parameter === 'elevation').map((x) => x.metric)).toEqual(['notEstimableShare']);
+  });
+
+  it("compares coverage with each variant's own level and type I error with 1 - level", () => {
+    const rows = [1, 2, 3].flatMap((r) => ['a', 'b'].map((variant) => row({ variant, replicate: r, parameter: 'x', truth: 0, estimate: 0.1 * r, se: 0.1, lower: 0.1 * r - 0.15, upper: 0.1 * r + 0.15 })));
+    const m = summarise(rows, { levels: { A: { a: 0.9 } } });
+    // common practice, no source: a 90% interval is judged against 0.9, and its test has size 0.1
+    expect(m.find((x) => x.variant === 'a' && x.metric === 'coverage')!.nominal).toBe(0.9);
+    expect(m.find((x) => x.variant === 'a' && x.metric === 'typeIError')!.nominal).toBeCloseTo(0.1, 12);
+    expect(m.find((x) => x.variant === 'b' && x.metric === 'coverage')!.nominal).toBe(0.95);
+    expect(() => summarise(rows, { levels: { A: { a: 1.5 } } })).toThrow(/options.levels/);
+  });
+});

@@ -109,6 +109,11 @@ describe('study runner determinism (same seed, same numbers)', () => {
     const failed = text.split('\n').filter((l) => l.includes(',failed,'));
     expect(failed.length).toBeGreaterThan(0);
     expect(failed[0]).toContain('habitat');
+    // the run says so out loud, with the share and the reason (failed replicates counted once each)
+    const share = r.metrics!.find((m) => m.metric === 'failureShare' && m.value > 0)!;
+    const warning = r.warnings.find((w) => w.includes(`variant "${share.variant}" (scenario ${share.scenario})`))!;
+    expect(warning).toContain(`${Math.round(share.value * share.n)} of ${share.n} fits failed (${(100 * share.value).toFixed(1)}%)`);
+    expect(warning).toMatch(/most common reasons: .*habitat.*\(\d+\)/);
   });
 
   it('refuses a folder that holds another study', async () => {
@@ -140,5 +145,43 @@ describe('study identity', () => {
     expect(manifest.fingerprint).toBe(studyFingerprint({ ...design, replicates: 5 }));
     const changed = { ...design, replicates: 5, variants: design.variants.map((v) => ({ ...v, model: { ...v.model, interval: 'wald' } })) };
     await expect(runStudy(changed, { out, workers: 1 })).rejects.toThrow(/different study/);
+  });
+});
+
+describe('variance components and correlations in studies', () => {
+  it('writes the SD intervals of profile fits and the estimated correlations, with their metrics and MCSEs', async () => {
+    const input = {
+      seed: 31, replicates: 24,
+      factors: [{ name: 'site', levels: 10 }], perCell: 6,
+      covariates: [{ name: 'x', varies: 'observation', normal: { mean: 0, sd: 1 } }],
+      truth: { fixed: { intercept: 1, x: 0.5 }, sd: { site: 1, residual: 1 }, slopes: { site: { x: 0.5 } }, correlations: { site: { 'intercept:x': 0.3 } } },
+      variants: [
+        { name: 'profile', model: { response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'random' }], interval: 'profile' } },
+        { name: 'slopes', model: { response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'random', slopes: ['x'] }] } },
+      ],
+    };
+    const r = await runStudy(input, { out: fresh('sd-rows'), workers: 1 });
+    const sdRows = r.replicates!.filter((row) => row.variant === 'profile' && row.parameter === 'sd(site)' && row.status !== 'failed');
+    // a profile interval contains its own estimate (common practice, no source)
+    expect(sdRows.length).toBeGreaterThan(0);
+    for (const row of sdRows) {
+      expect(row.lower).toBeLessThanOrEqual(row.estimate + 1e-9);
+      expect(row.upper).toBeGreaterThanOrEqual(row.estimate - 1e-9);
+    }
+    const metric = (variant: string, parameter: string, name: string) =>
+      r.metrics!.find((m) => m.variant === variant && m.parameter === parameter && m.metric === name);
+    for (const name of ['coverage', 'width']) {
+      const m = metric('profile', 'sd(site)', name)!;
+      expect(Number.isFinite(m.value) && Number.isFinite(m.mcse)).toBe(true);
+    }
+    const cor = r.replicates!.filter((row) => row.variant === 'slopes' && row.parameter === 'cor(site:intercept,x)');
+    expect(cor.length).toBe(24);
+    expect(cor.every((row) => row.kind === 'correlation' && row.truth === 0.3)).toBe(true);
+    for (const name of ['mean', 'bias', 'empiricalSE', 'rmse']) {
+      const m = metric('slopes', 'cor(site:intercept,x)', name)!;
+      expect(Number.isFinite(m.value) && Number.isFinite(m.mcse)).toBe(true);
+    }
+    // the CSV keeps the kind, so the metrics read back from disk are the same
+    expect(readFileSync(join(r.folder, 'replicates.csv'), 'utf8')).toContain('"cor(site:intercept,x)",correlation,0.3');
   });
 });

@@ -3,7 +3,7 @@ import { formatMetric } from '../study/format-metric';
 import { renderTable, type Cell } from './text-table';
 
 /** Metrics shown by default, in this order, when present. */
-export const DEFAULT_METRICS = ['coverage', 'noIntervalShare', 'bias', 'rmse', 'width', 'power', 'typeIError', 'sdMean', 'sdMedian', 'singularShare', 'failureShare'];
+export const DEFAULT_METRICS = ['coverage', 'noIntervalShare', 'bias', 'rmse', 'width', 'power', 'typeIError', 'sdMean', 'sdMedian', 'singularShare', 'failureShare', 'notEstimableShare'];
 
 /** One line per scenario × variant × parameter, a column per metric, each "value (MCSE)". */
 export function formatMetricsTable(metrics: readonly MetricRow[], wanted: string[] = DEFAULT_METRICS): string {
@@ -18,9 +18,12 @@ export function formatMetricsTable(metrics: readonly MetricRow[], wanted: string
   const body: Cell[][] = [];
   for (const [key, byMetric] of rows) {
     const [scenario, variant, parameter] = key.split('\u0000');
+    // A coefficient aliased in every replicate has no other metric: say so in its cells.
+    const never = byMetric.get('notEstimableShare')?.value === 1;
     body.push([scenario, variant, parameter, ...present.map((m) => {
       const r = byMetric.get(m);
-      return r ? formatMetric(r.value, r.mcse) : '';
+      if (r) return formatMetric(r.value, r.mcse);
+      return never ? 'not estimable' : '';
     })]);
   }
   return renderTable(['scenario', 'variant', 'parameter', ...present], body);

@@ -7,6 +7,7 @@ import { QuadratInputError } from '../model/errors';
 import { parseWholeNumber } from '../model/option-checks';
 import { parseShard } from '../study/batch-plan';
 import type { MetricRow } from '../study/metrics';
+import { failureWarnings } from '../study/failure-warnings';
 import { mergeShards } from '../study/merge-shards';
 import { runStudy } from '../study/run-study';
 import { readStudy, readingText } from '../study/reading';
@@ -75,6 +76,7 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
     if (values.json) {
       print(JSON.stringify(metrics.map((m) => ({ ...m, value: Number.isFinite(m.value) ? m.value : null, mcse: Number.isFinite(m.mcse) ? m.mcse : null })), null, 1));
     } else {
+      for (const w of failureWarnings(metrics)) print(`warning: ${w}`);
       // the answer first, then the table it comes from
       print(readingText(readStudy(metrics, readManifest(positionals[0]).scenarios)));
       print('');
@@ -88,6 +90,7 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
     if (!values.out) throw new QuadratInputError('study merge: --out <folder> is required', { field: '--out' });
     const { batches, metrics } = mergeShards(positionals, values.out);
     print(`merged ${batches} batches from ${positionals.length} folders into ${values.out}`);
+    for (const w of failureWarnings(metrics)) print(`warning: ${w}`);
     print(formatMetricsTable(metrics));
     return 0;
   }

@@ -2,6 +2,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { metricVsScenario } from '../plots/metric-vs-scenario';
 import { sdRecovery } from '../plots/sd-recovery';
+import { failureWarnings } from '../study/failure-warnings';
 import type { MetricRow } from '../study/metrics';
 import { parseReplicateCsv } from '../study/replicate-csv';
 import type { ReplicateRow } from '../study/replicate-row';
@@ -35,22 +36,34 @@ export async function studyChartSections(results: StudyResults, options: { param
   const x = fields[0];
   const facet = fields[1];
   const metrics = withScenarioFields(results.metrics, manifest.scenarios);
-  // chart the fixed effects that every scenario × variant estimates (a year[...] dummy exists only in some)
-  const cells = new Set(results.metrics.map((m) => `${m.scenario}\u0000${m.variant}`)).size;
-  const coverageCount = new Map<string, number>();
+  // Chart every fixed effect that some variant estimates in every scenario (a year=… dummy that exists
+  // only in some scenarios is left to the tables), keeping every variant in the legend.
+  const scenarioCount = manifest.scenarios.length;
+  const coverageScenarios = new Map<string, Set<string>>();
   for (const m of results.metrics) {
-    if (m.kind === 'fixed' && m.metric === 'coverage') coverageCount.set(m.parameter, (coverageCount.get(m.parameter) ?? 0) + 1);
+    if (m.kind !== 'fixed' || m.metric !== 'coverage') continue;
+    if (!coverageScenarios.has(m.parameter)) coverageScenarios.set(m.parameter, new Set());
+    coverageScenarios.get(m.parameter)!.add(m.scenario);
   }
-  const fixedParams = options.parameters ?? [...coverageCount].filter(([, count]) => count === cells).map(([p]) => p);
+  const fixedParams = options.parameters ?? [...coverageScenarios].filter(([, sc]) => sc.size === scenarioCount).map(([p]) => p);
+  const variants = distinct(results.metrics.map((m) => m.variant));
   const sections: ReportSection[] = [];
   if (!x) {
-    sections.push({ heading: 'Metrics', html: htmlTable(results.metrics.filter((m) => ['coverage', 'bias', 'rmse', 'power'].includes(m.metric)), { mcse: true }) });
+    sections.push({ heading: 'Metrics', html: htmlTable(results.metrics.filter((m) => ['coverage', 'bias', 'rmse', 'power', 'notEstimableShare'].includes(m.metric)), { mcse: true }) });
     return sections;
   }
   for (const metric of ['coverage', 'bias', 'rmse'] as const) {
     for (const parameter of fixedParams) {
-      const spec = metricVsScenario(metrics, { metric, x, facet, parameter });
-      sections.push({ heading: `${metric} of ${parameter}`, chartSvg: await specToSvg(spec) });
+      const rows = metrics.filter((m) => m.parameter === parameter && m.metric === metric);
+      const note = notEstimableNote(results.metrics, parameter);
+      // variants with different interval levels are drawn against their own nominal level, one chart each
+      const levels = metric === 'coverage' ? distinct(rows.map((m) => m.nominal)) : [undefined];
+      for (const level of levels) {
+        const mine = levels.length > 1 ? rows.filter((m) => m.nominal === level) : rows;
+        const spec = metricVsScenario(mine, { metric, x, facet, parameter, variants });
+        const heading = levels.length > 1 ? `${metric} of ${parameter} (variants at level ${level})` : `${metric} of ${parameter}`;
+        sections.push({ heading, chartSvg: await specToSvg(spec), ...(note ? { markdown: note } : {}) });
+      }
     }
   }
   const sdParams = [...new Set(results.replicates.filter((r) => r.kind === 'sd').map((r) => r.parameter))];
@@ -66,12 +79,26 @@ export async function studyChartSections(results: StudyResults, options: { param
   return sections;
 }
 
+function distinct<T>(values: readonly T[]): T[] {
+  return [...new Set(values)];
+}
+
+/** Which variants cannot estimate a coefficient (aliased in every replicate of some scenario). */
+function notEstimableNote(metrics: readonly MetricRow[], parameter: string): string {
+  const never = distinct(metrics.filter((m) => m.parameter === parameter && m.metric === 'notEstimableShare' && m.value === 1).map((m) => m.variant));
+  if (!never.length) return '';
+  return `Not estimable with ${never.map((v) => `**${v}**`).join(', ')} (aliased with the variant's fixed grouping columns), so ${never.length > 1 ? 'they have' : 'it has'} no points here.`;
+}
+
 /** A self-contained HTML summary of a finished study. */
 export async function studyReportHtml(results: StudyResults, title = 'Simulation study', reading: ReadingOptions = {}): Promise<string> {
   const { manifest, metrics } = results;
   const design = manifest.design as { variants?: { name: string }[] };
   const shares = metrics.filter((m) => m.parameter === '*');
+  const failures = failureWarnings(metrics);
   const sections: ReportSection[] = [
+    // failed fits first: every number below describes only the data sets that could be fitted
+    ...(failures.length ? [{ heading: 'Failed fits', markdown: failures.map((w) => `- ${w}`).join('\n') }] : []),
     // the answer first, before any table or chart
     { heading: 'The answer in plain words', markdown: readingMarkdown(readStudy(metrics, manifest.scenarios, reading)) },
     {

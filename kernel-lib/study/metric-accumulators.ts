@@ -140,14 +140,17 @@ export class FitStatusAccumulator {
   /** Parameters in first-seen order. */
   readonly parameterOrder: ParameterAccumulator[] = [];
   private readonly severity = new Map<number, number>();
+  /** Reason of the first failed row of each failed replicate. */
+  private readonly failReason = new Map<number, string>();
   // Rows of one replicate usually arrive together: skip the map while nothing changes.
   private lastReplicate = NaN;
   private lastSeverity = -1;
 
   constructor(readonly scenario: string, readonly variant: string) {}
 
-  add(replicate: number, status: ReplicateStatus): void {
+  add(replicate: number, status: ReplicateStatus, reason = ''): void {
     const s = SEVERITY[status];
+    if (s === SEVERITY.failed && !this.failReason.has(replicate)) this.failReason.set(replicate, reason || 'no reason given');
     if (replicate === this.lastReplicate && s <= this.lastSeverity) return;
     const previous = this.severity.get(replicate);
     const next = previous === undefined || s > previous ? s : previous;
@@ -158,6 +161,13 @@ export class FitStatusAccumulator {
 
   get replicates(): number {
     return this.severity.size;
+  }
+
+  /** Reasons of failed replicates with their counts, most common first (ties in first-seen order). */
+  failureReasons(): [string, number][] {
+    const counts = new Map<string, number>();
+    for (const reason of this.failReason.values()) counts.set(reason, (counts.get(reason) ?? 0) + 1);
+    return [...counts].sort((a, b) => b[1] - a[1]);
   }
 
   /** Number of replicates whose fit status is exactly `severity`. */

@@ -88,6 +88,10 @@ export interface SummariseOptions {
  * For kind 'sd': sdMean, sdMedian, bias, relativeBias, empiricalSE, modelSE,
  * relativeErrorModelSE, sdRMSE, coverage, width. No power/typeIError for SDs: 0 is on the
  * boundary of the parameter space, where "interval excludes 0" is not a valid test.
+ * For kind 'correlation': the metrics of kind 'fixed' that its rows allow (no se or interval:
+ * mean, bias, empiricalSE, rmse).
+ * A parameter with rows of status 'aliased' also gets notEstimableShare (out of the replicates
+ * whose fit ran); fit-share rows name the most common reasons of failed fits in their note.
  *
  * Throws, naming the row and field, on malformed rows, on a parameter whose truth or kind
  * changes between rows, and on duplicated replicates.
@@ -165,7 +169,7 @@ function groupRows(rows: readonly ReplicateRow[]): FitStatusAccumulator[] {
       }
       lastParam = param;
     }
-    group.add(row.replicate, row.status);
+    group.add(row.replicate, row.status, row.reason);
     param.add(row, i);
   }
   for (const group of order) {
@@ -196,6 +200,10 @@ function proportionRow(base: RowBase, metric: MetricName, count: number, n: numb
   return row;
 }
 
+/** Failure reasons named in the note of a failureShare row. */
+const MAX_REASONS = 3;
+export const FAILURE_REASONS_PREFIX = 'most common reasons: ';
+
 type RowBase = Pick<MetricRow, 'scenario' | 'variant' | 'parameter' | 'kind'>;
 
 function appendShareMetrics(out: MetricRow[], group: FitStatusAccumulator): void {
@@ -204,7 +212,14 @@ function appendShareMetrics(out: MetricRow[], group: FitStatusAccumulator): void
   const base: RowBase = { scenario: group.scenario, variant: group.variant, parameter: '*', kind: 'fit' };
   out.push(proportionRow(base, 'singularShare', group.countAt(SEVERITY_SINGULAR), n));
   out.push(proportionRow(base, 'nonconvergedShare', group.countAt(SEVERITY_NONCONVERGED), n));
-  out.push(proportionRow(base, 'failureShare', group.countAt(SEVERITY_FAILED), n));
+  const failed = proportionRow(base, 'failureShare', group.countAt(SEVERITY_FAILED), n);
+  if (failed.value > 0) {
+    const reasons = group.failureReasons();
+    const shown = reasons.slice(0, MAX_REASONS).map(([reason, count]) => `${reason} (${count})`).join('; ');
+    const more = reasons.length > MAX_REASONS ? `; ${reasons.length - MAX_REASONS} other reason(s)` : '';
+    failed.note = joinNotes(failed.note, `${FAILURE_REASONS_PREFIX}${shown}${more}`);
+  }
+  out.push(failed);
 }
 
 function formatShare(x: number): string {
@@ -235,13 +250,15 @@ function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level
   // A coefficient the variant cannot estimate (aliased) keeps a row saying so, whatever else is missing.
   let aliasedNote: string | undefined;
   if (p.aliased > 0) {
-    const share = proportionRow(base, 'notEstimableShare', p.aliased, p.rows);
-    share.note = p.aliased === p.rows
+    // out of the replicates whose fit ran (a failed fit says nothing about estimability)
+    const fitted = p.rows - (p.unusable - p.aliased);
+    const share = proportionRow(base, 'notEstimableShare', p.aliased, fitted);
+    share.note = p.aliased === fitted
       ? 'not estimable: aliased with other columns in every replicate'
-      : `not estimable (aliased) in ${p.aliased} of ${p.rows} replicates`;
+      : `not estimable (aliased) in ${p.aliased} of ${fitted} replicates`;
     out.push(share);
-    if (p.aliased < p.rows) {
-      aliasedNote = `not estimable in ${p.aliased} of ${p.rows} replicates (${formatShare(p.aliased / p.rows)}): metrics use the others`;
+    if (p.aliased < fitted) {
+      aliasedNote = `not estimable in ${p.aliased} of ${fitted} replicates (${formatShare(p.aliased / fitted)}): metrics use the others`;
     }
   }
   const n = p.estimate.n;

@@ -3,7 +3,7 @@
  * what the fit of one simulated data set says about one parameter, next to its true value.
  */
 
-export type ReplicateKind = 'fixed' | 'sd';
+export type ReplicateKind = 'fixed' | 'sd' | 'correlation';
 
 export type ReplicateStatus = 'ok' | 'singular' | 'nonconverged' | 'failed' | 'aliased';
 
@@ -12,11 +12,11 @@ export interface ReplicateRow {
   variant: string;
   replicate: number;
   parameter: string;
-  /** Fixed effect, or a standard deviation (random-effect SD or 'residual'). */
+  /** Fixed effect, a standard deviation (random-effect SD or 'residual'), or a correlation of random effects. */
   kind: ReplicateKind;
   /** True value (0 when absent). */
   truth: number;
-  /** For kind 'sd', se/lower/upper may be NaN when no interval method is available. */
+  /** For kinds 'sd' and 'correlation', se/lower/upper may be NaN when no interval method is available. */
   estimate: number;
   se: number;
   lower: number;
@@ -28,7 +28,7 @@ export interface ReplicateRow {
   reason: string;
 }
 
-export const REPLICATE_KINDS: readonly ReplicateKind[] = ['fixed', 'sd'];
+export const REPLICATE_KINDS: readonly ReplicateKind[] = ['fixed', 'sd', 'correlation'];
 
 export const REPLICATE_STATUSES: readonly ReplicateStatus[] = [
   'ok',

@@ -9,7 +9,7 @@ import { TargetProjector } from '../design/realised-truth';
 import { createWorkspace, simulateInto, simulationPlan, type SimulatedData } from '../design/simulate';
 import type { ResolvedVariant, SurveyDesign } from '../design/types';
 import { streamFamily, type StreamFamily } from '../random/stream';
-import type { ReplicateRow, ReplicateStatus } from './replicate-row';
+import type { ReplicateKind, ReplicateRow, ReplicateStatus } from './replicate-row';
 
 /** Name of the SD parameter of a random term ("sd(site)", "sd(site:x)") or of the residual ("sd(residual)"). */
 export function sdParameterName(factor: string, term: string): string {
@@ -123,7 +123,7 @@ function fitStatus(fit: FitResult | null, reason: string): ReplicateStatus {
 
 /** One row, built with a fixed field order so every row shares one object shape. */
 function makeRow(
-  scenario: string, variant: string, replicate: number, parameter: string, kind: 'fixed' | 'sd', truth: number,
+  scenario: string, variant: string, replicate: number, parameter: string, kind: ReplicateKind, truth: number,
   estimate: number, se: number, lower: number, upper: number, df: number, status: ReplicateStatus, reason: string,
 ): ReplicateRow {
   return { scenario, variant, replicate, parameter, kind, truth, estimate, se, lower, upper, df, status, reason };
@@ -157,10 +157,38 @@ function pushRows(
       let r = null;
       if (fit) for (const v of fit.random) if (v.factor === factor && v.term === term) { r = v; break; }
       const bad = status === 'failed' || !r;
-      rows.push(makeRow(key, name, replicate, sdParameterName(factor, term), 'sd', truth, bad ? NaN : r!.sd, NaN, NaN, NaN, NaN,
+      // profile and bootstrap fits give the SD an interval; the others leave it empty
+      const lower = bad || r!.lower === undefined ? NaN : r!.lower;
+      const upper = bad || r!.upper === undefined ? NaN : r!.upper;
+      rows.push(makeRow(key, name, replicate, sdParameterName(factor, term), 'sd', truth, bad ? NaN : r!.sd, NaN, lower, upper, NaN,
         bad ? 'failed' : status, usable ? '' : why));
     }
   }
+  for (const g of variant.model.groups) {
+    if (g.as !== 'random' || !g.slopes?.length || g.correlated === false) continue;
+    const terms = ['intercept', ...g.slopes];
+    for (let i = 0; i < terms.length; i++) {
+      for (let j = i + 1; j < terms.length; j++) {
+        const truth = correlationTruth(scenario.design, g.factor, terms[i], terms[j]);
+        let r = null;
+        if (fit) for (const c of fit.correlations) if (c.factor === g.factor && c.terms[0] === terms[i] && c.terms[1] === terms[j]) { r = c; break; }
+        const bad = status === 'failed' || !r;
+        rows.push(makeRow(key, name, replicate, correlationParameterName(g.factor, terms[i], terms[j]), 'correlation', truth,
+          bad ? NaN : r!.value, NaN, NaN, NaN, NaN, bad ? 'failed' : status, usable ? '' : why));
+      }
+    }
+  }
+}
+
+/** Name of the correlation parameter of two random terms of a factor ("cor(site:intercept,x)"). */
+export function correlationParameterName(factor: string, a: string, b: string): string {
+  return `cor(${factor}:${a},${b})`;
+}
+
+/** True correlation of two random terms (truth.correlations, either order); 0 when not given. */
+function correlationTruth(design: SurveyDesign, factor: string, a: string, b: string): number {
+  const given = design.truth.correlations[factor];
+  return given?.[`${a}:${b}`] ?? given?.[`${b}:${a}`] ?? 0;
 }
 
 /** Random terms a variant estimates, plus the residual, in model order. */

@@ -6,6 +6,7 @@ import type { SurveyDesign } from '../design/types';
 import { QuadratInputError } from '../model/errors';
 import { batchFileName, batchesOfShard, planBatches, type Batch, type Shard } from './batch-plan';
 import type { BatchReply, BatchTask } from './batch-worker';
+import { failureWarnings } from './failure-warnings';
 import { summarise, type MetricRow } from './metrics';
 import { parseReplicateCsv, replicateRowsToCsv } from './replicate-csv';
 import type { ReplicateRow } from './replicate-row';
@@ -176,6 +177,7 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
   const runSeconds = (Date.now() - runStarted) / 1000;
   const finaliseStarted = Date.now();
   const summary = complete && !options.shard ? finalise(options.out, all) : null;
+  if (summary) warnings.push(...failureWarnings(summary.metrics));
   return {
     folder: options.out, scenarios, batchesRun: ran, batchesSkipped: mine.length - todo.length, complete, interrupted,
     seconds: (Date.now() - started) / 1000, warnings, metrics: summary?.metrics ?? null, replicates: summary?.rows ?? null,

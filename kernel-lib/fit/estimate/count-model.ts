@@ -218,7 +218,7 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
   }
   for (let a = 0; a < p; a++) { lower[dTheta + a] = -1e4; upper[dTheta + a] = 1e4; }
   if (estimateK) { start[dim - 1] = Math.log(k); lower[dim - 1] = LOG_K_MIN; upper[dim - 1] = LOG_K_MAX; }
-  let res = nelderMeadBounded(objective, start, lower, upper, { step: 0.2, fTolerance: 1e-6, xTolerance: 1e-3 });
+  let res = nelderMeadBounded(objective, start, lower, upper, { step: 0.2, fTolerance: 1e-5, xTolerance: 1e-2 });
   let converged = res.converged;
   let reason = res.reason;
   // snap near-zero SDs to exactly zero when that is no worse, then polish the rest there
@@ -230,7 +230,7 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
       snapped = true;
     }
   }
-  const again = nelderMeadBounded(objective, res.x, lower, upper, { step: 0.01, fTolerance: 1e-10, xTolerance: 1e-6 });
+  const again = nelderMeadBounded(objective, res.x, lower, upper, { step: 0.01, fTolerance: 1e-9, xTolerance: 1e-5 });
   if (again.value <= res.value + (snapped ? 1e-8 : 0)) {
     res = again;
     converged = again.converged;

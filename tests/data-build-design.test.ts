@@ -303,6 +303,24 @@ describe('buildDesign: random terms', () => {
   });
 });
 
+describe('buildDesign: within-between split', () => {
+  it('replaces x by its deviation from the site mean and adds the site mean after the fixed terms', () => {
+    const d = design(quadrats, { response: 'y', fixed: ['x', 'habitat'], groups: [{ factor: 'site', as: 'random', split: ['x'] }] });
+    expect(d.fixedNames).toEqual(['intercept', 'x', 'habitat=mid', 'habitat=wet', 'x_mean_site']);
+    // site means of x by hand from the table: A (1.5, 2, -0.5, -1), B (3.25, 0, 0.75, 3.5), C (4, 1, 2.5, 2.25)
+    const siteMean: Record<string, number> = { A: 0.5, B: 1.875, C: 2.4375 };
+    const x = quadrats.x as number[];
+    const site = quadrats.site as string[];
+    expect(column(d, 'x_mean_site')).toEqual(site.map((s) => siteMean[s]));
+    column(d, 'x').forEach((v, i) => expect(v).toBeCloseTo(x[i] - siteMean[site[i]], 14));
+  });
+
+  it('refuses to split a categorical column', () => {
+    const e = inputError(() => design(quadrats, { response: 'y', fixed: ['habitat'], groups: [{ factor: 'site', as: 'random', split: ['habitat'] }] }));
+    expect(e.field).toBe('model.groups[0].split[0]');
+  });
+});
+
 describe('buildDesign: missing values', () => {
   const withGaps: Columns = {
     y: [1.5, 2, 3, 4, 5, 6, 7, 8],

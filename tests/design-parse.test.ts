@@ -197,15 +197,38 @@ describe('parseDesign: messages name the field', () => {
     expect(inputError(() => parseDesign(input)).message).toMatch(/^design\.covariates\[0\]: give exactly one of normal, uniform, categories \(got normal and uniform\)/);
   });
 
-  it('refuses confounding of a non-normal covariate or with a factor the unit is not nested in', () => {
+  it('refuses a between share of a non-normal covariate or with a factor the unit is not nested in', () => {
     const input = example();
-    input.covariates[1].confounding = { factor: 'site', strength: 0.5 };
-    expect(inputError(() => parseDesign(input)).field).toBe('design.covariates[1].confounding');
+    input.covariates[1].between = { factor: 'site', share: 0.5 };
+    expect(inputError(() => parseDesign(input)).field).toBe('design.covariates[1].between');
     const other = example();
-    other.covariates.push({ name: 'soil', varies: 'plot', normal: { mean: 0, sd: 1 }, confounding: { factor: 'year', strength: 0.5 } });
-    expect(inputError(() => parseDesign(other)).message).toMatch(/^design\.covariates\[2\]\.confounding\.factor: a covariate that varies by "plot"/);
-    other.covariates[2].confounding.factor = 'site';
-    expect(parseDesign(other).covariates[2]).toMatchObject({ confounding: { factor: 'site', strength: 0.5 } });
+    other.covariates.push({ name: 'soil', varies: 'plot', normal: { mean: 0, sd: 1 }, between: { factor: 'year', share: 0.5 } });
+    expect(inputError(() => parseDesign(other)).message).toMatch(/^design\.covariates\[2\]\.between\.factor: a covariate that varies by "plot"/);
+    other.covariates[2].between.factor = 'site';
+    expect(parseDesign(other).covariates[2]).toMatchObject({ between: { factor: 'site', share: 0.5, correlation: 0 } });
+  });
+
+  it('names the new spelling for the earlier "confounding" and "strength"', () => {
+    const old = example();
+    old.covariates.push({ name: 'soil', varies: 'plot', normal: { mean: 0, sd: 1 }, confounding: { factor: 'site', strength: 0.5 } });
+    const e = inputError(() => parseDesign(old));
+    expect(e.field).toBe('design.covariates[2].confounding');
+    expect(e.message).toMatch(/renamed to "between".*"share": 0\.8/);
+    const half = example();
+    half.covariates.push({ name: 'soil', varies: 'plot', normal: { mean: 0, sd: 1 }, between: { factor: 'site', strength: 0.5 } });
+    expect(inputError(() => parseDesign(half)).message).toMatch(/between\.strength: renamed to "share"/);
+  });
+
+  it('checks the correlation with the factor effect: within [-1, 1] and only with a random intercept in truth', () => {
+    const input = example();
+    input.covariates.push({ name: 'soil', varies: 'observation', normal: { mean: 0, sd: 1 }, between: { factor: 'site', share: 0.5, correlation: 1.5 } });
+    expect(inputError(() => parseDesign(input)).field).toBe('design.covariates[2].between.correlation');
+    input.covariates[2].between.correlation = 0.4;
+    expect(parseDesign(input).covariates[2]).toMatchObject({ between: { factor: 'site', share: 0.5, correlation: 0.4 } });
+    const noSd = example();
+    noSd.covariates.push({ name: 'soil', varies: 'observation', normal: { mean: 0, sd: 1 }, between: { factor: 'plot', share: 0.5, correlation: 0.4 } });
+    delete noSd.truth.sd.plot;
+    expect(inputError(() => parseDesign(noSd)).message).toMatch(/between\.correlation: correlates "soil" with the random intercept of "plot", but truth\.sd gives "plot" no SD/);
   });
 
   it('refuses unequal sizes of the wrong length', () => {

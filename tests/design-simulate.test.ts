@@ -264,13 +264,13 @@ describe('simulateColumns: moments over replicates', () => {
     expect(Math.abs(temps.reduce((a, b) => a + b, 0) / temps.length - 5)).toBeLessThan(4 * Math.sqrt(100 / 12 / temps.length));
   });
 
-  it('puts the stated share of a confounded covariate\'s variance between sites', () => {
+  it('puts the stated share of a covariate\'s variance between sites', () => {
     // x = mu + sd (sqrt(s) a_site + sqrt(1-s) e): a one-way random model with sigma_a² = s sd², sigma_e² = (1-s) sd².
     // Expected site-mean variance sigma_a² + sigma_e²/m and total sample variance sigma_e² + sigma_a² (N-m)/(N-1)
     // (Searle, Casella and McCulloch 1992, ch. 3, expected sums of squares of the balanced one-way model).
     const input = {
       ...oneWay(50, 4, 0, 1),
-      covariates: [{ name: 'x', varies: 'observation', normal: { mean: 1, sd: 2 }, confounding: { factor: 'site', strength: 0.8 } }],
+      covariates: [{ name: 'x', varies: 'observation', normal: { mean: 1, sd: 2 }, between: { factor: 'site', share: 0.8 } }],
     };
     const design = parseDesign(input);
     const between: number[] = [];
@@ -286,6 +286,28 @@ describe('simulateColumns: moments over replicates', () => {
     const [t, tse] = meanAndSe(total);
     expect(Math.abs(b - (sa2 + se2 / 4))).toBeLessThan(4 * bse);
     expect(Math.abs(t - (se2 + (sa2 * (200 - 4)) / 199))).toBeLessThan(4 * tse);
+  });
+});
+
+describe('simulateColumns: a covariate correlated with the group effects', () => {
+  it('gives the between-site part the stated correlation with the realised site intercepts, keeping its variance', () => {
+    // one observation per site, share 1: x_g = mu + sd a_g with a_g = rho z_g + sqrt(1 - rho²) f_g (types.ts BetweenSpec).
+    // Sample correlation of m pairs has SE about (1 - rho²)/sqrt(m) (Fisher 1921; common practice, no source).
+    const m = 3000;
+    const input = {
+      ...oneWay(m, 1, 1.5, 1),
+      covariates: [{ name: 'x', varies: 'observation', normal: { mean: 0, sd: 2 }, between: { factor: 'site', share: 1, correlation: 0.6 } }],
+    };
+    const d = simulateColumns(parseDesign(input), createStream(9, 'corr'));
+    const x = Array.from(col(d, 'x'));
+    const b = Array.from(d.effects.site.values);
+    const mx = x.reduce((a, v) => a + v, 0) / m;
+    const mb = b.reduce((a, v) => a + v, 0) / m;
+    let sxx = 0, sbb = 0, sxb = 0;
+    for (let g = 0; g < m; g++) { sxx += (x[g] - mx) ** 2; sbb += (b[g] - mb) ** 2; sxb += (x[g] - mx) * (b[g] - mb); }
+    const r = sxb / Math.sqrt(sxx * sbb);
+    expect(Math.abs(r - 0.6)).toBeLessThan(4 * (1 - 0.36) / Math.sqrt(m));
+    expect(Math.abs(sxx / (m - 1) / 4 - 1)).toBeLessThan(4 * Math.sqrt(2 / m)); // variance sd² = 4 (chi-square SE)
   });
 });
 

@@ -151,7 +151,7 @@ describe('parseModel: errors name the field', () => {
     );
     const group = inputError(() => parseModel({ ...base, groups: [{ factor: 's', as: 'random', nested: 'x' }] }));
     expect(group.message).toBe(
-      'model.groups[0]: unknown key "nested"; allowed keys: factor, as, within, slopes, correlated, reference',
+      'model.groups[0]: unknown key "nested"; allowed keys: factor, as, within, slopes, split, correlated, reference',
     );
     const term = inputError(() => parseModel({ ...base, fixed: [{ column: 'h', ref: 'a' }] }));
     expect(term.message).toBe('model.fixed[0]: unknown key "ref"; allowed keys: column, reference');
@@ -165,6 +165,16 @@ describe('parseModel: errors name the field', () => {
     const e = inputError(() => parseModel({ response: 'y', intercept: false }));
     expect(e.message).toBe('model.intercept: a model without an intercept needs at least one fixed term');
     expect(e.field).toBe('model.intercept');
+  });
+
+  it('checks split: names fixed main-effect terms', () => {
+    const m = parseModel({ response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'random', split: ['x'] }] });
+    expect(m.groups[0].split).toEqual(['x']);
+    expect(modelToJson(m).groups?.[0].split).toEqual(['x']);
+    expect(parseModel({ response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'random' }] }).groups[0]).not.toHaveProperty('split');
+    const e = inputError(() => parseModel({ response: 'y', fixed: ['x:z'], groups: [{ factor: 'site', as: 'random', split: ['x'] }] }));
+    expect(e.field).toBe('model.groups[0].split[0]');
+    expect(e.message).toMatch(/"x" must also be a fixed term/);
   });
 
   it('requires a response and an object', () => {

@@ -19,6 +19,8 @@
  *   coding whatever other terms are present.
  * - A fixed grouping factor adds `site=B` columns, then for each slope `x` the columns
  *   `x:site=B`. Nested levels are labelled `outer/inner` (`plot=A/1`).
+ * - A covariate in a group's `split` keeps its column name but holds the deviation from its
+ *   mean per level of the group; the mean follows the fixed terms as `x_mean_site`.
  * - A random grouping factor becomes a RandomTerm (intercept, then slopes; values
  *   observation-major).
  *
@@ -31,7 +33,7 @@
  */
 import type { DesignMatrices, RandomTerm } from '../fit/design';
 import { QuadratInputError, listNames } from '../model/errors';
-import { INTERCEPT, isInteraction, levelName, productName, termColumns, termLabel } from '../model/terms';
+import { INTERCEPT, groupMeanName, isInteraction, levelName, productName, termColumns, termLabel } from '../model/terms';
 import type { GroupSpec, ResolvedModel } from '../model/types';
 import { columnLength, type Columns } from './columns';
 import { inferColumnKind, numericValues, type ColumnKind } from './column-kind';
@@ -179,6 +181,22 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
     return f;
   };
 
+  // Within-between split: `x` becomes x − x̄_g and `x_mean_g` holds x̄_g (Bell and Jones 2015).
+  model.groups.forEach((g, i) => {
+    (g.split ?? []).forEach((column, j) => {
+      const field = `model.groups[${i}].split[${j}]`;
+      const b = blocks.find((x) => x.parts.length === 1 && x.parts[0].names[0] === column);
+      if (b === undefined || b.parts[0].kind !== 'numeric') {
+        throw new QuadratInputError(`${field}: "${column}" is not a numeric fixed term; only a numeric column can be split into its ${g.factor} mean and the deviation from it`, { field, column });
+      }
+      const { within, means } = splitByGroup(b.parts[0].values, groupCoding(g.factor).codes);
+      b.parts = [{ kind: 'numeric', values: within, names: [column] }];
+      const name = groupMeanName(column, g.factor);
+      blocks.push({ parts: [{ kind: 'numeric', values: means, names: [name] }], offset: fixedNames.length, width: 1 });
+      fixedNames.push(name);
+    });
+  });
+
   const levelCounts: Record<string, number> = {};
   const random: RandomTerm[] = [];
   const groupBlocks: FixedGroupBlock[] = [];
@@ -318,6 +336,22 @@ function treatmentCoding(column: string, factor: SortedFactor, reference: string
   const names: string[] = [];
   for (let k = 0; k < levels.length; k++) if (k !== ref) names.push(levelName(column, levels[k]));
   return { kind: 'categorical', codes: factor.codes, reference: ref, names };
+}
+
+/** Each value's deviation from its group mean, and the group mean, per row. */
+function splitByGroup(values: Float64Array, codes: Int32Array): { within: Float64Array; means: Float64Array } {
+  let groups = 0;
+  for (let r = 0; r < codes.length; r++) groups = Math.max(groups, codes[r] + 1);
+  const sum = new Float64Array(groups);
+  const count = new Float64Array(groups);
+  for (let r = 0; r < codes.length; r++) { sum[codes[r]] += values[r]; count[codes[r]]++; }
+  const within = new Float64Array(values.length);
+  const means = new Float64Array(values.length);
+  for (let r = 0; r < codes.length; r++) {
+    means[r] = sum[codes[r]] / count[codes[r]];
+    within[r] = values[r] - means[r];
+  }
+  return { within, means };
 }
 
 /** One 0/1 column per level, for the first categorical main effect of a model without an intercept. */

@@ -1,4 +1,4 @@
-/** Covariates of the survey design: distributions, the unit they vary by, confounding. */
+/** Covariates of the survey design: distributions, the unit they vary by, their share between levels of a factor. */
 import { describeValue, listNames } from '../model/errors';
 import {
   expectArray,
@@ -12,9 +12,9 @@ import {
   rejectUnknownKeys,
 } from './checks';
 import { isNestedWithin } from './factors';
-import type { ResolvedCovariate, ResolvedFactor } from './types';
+import type { BetweenSpec, ResolvedCovariate, ResolvedFactor } from './types';
 
-const COVARIATE_KEYS = ['name', 'varies', 'normal', 'uniform', 'categories', 'confounding', 'allocation'];
+const COVARIATE_KEYS = ['name', 'varies', 'normal', 'uniform', 'categories', 'between', 'allocation'];
 const DISTRIBUTIONS = ['normal', 'uniform', 'categories'];
 export const OBSERVATION = 'observation';
 
@@ -29,6 +29,13 @@ export function parseCovariates(value: unknown, path: string, factors: readonly 
   return list.map((item, i) => {
     const p = `${path}[${i}]`;
     const obj = expectObject(item, p);
+    if (obj.confounding !== undefined) {
+      fail(
+        `${p}.confounding: renamed to "between" (the share of the covariate's variance between levels of a factor): ` +
+          `{ "factor": "site", "share": 0.8 }; add "correlation" to correlate that part with the factor's random intercept`,
+        `${p}.confounding`,
+      );
+    }
     rejectUnknownKeys(obj, COVARIATE_KEYS, p);
     const name = expectName(obj.name, `${p}.name`);
     const earlier = seen.get(name);
@@ -52,8 +59,8 @@ export function parseCovariates(value: unknown, path: string, factors: readonly 
     if (obj.allocation === 'balanced' && varies === OBSERVATION) {
       fail(`${p}.allocation: "balanced" needs a covariate that varies by a factor (one category per level), not by observation`, `${p}.allocation`);
     }
-    if (obj.confounding !== undefined && given[0] !== 'normal') {
-      fail(`${p}.confounding: only a normal covariate can be confounded with a factor`, `${p}.confounding`);
+    if (obj.between !== undefined && given[0] !== 'normal') {
+      fail(`${p}.between: only a normal covariate can have a share between levels of a factor`, `${p}.between`);
     }
     switch (given[0]) {
       case 'normal': {
@@ -67,7 +74,7 @@ export function parseCovariates(value: unknown, path: string, factors: readonly 
           mean: expectNumber(n.mean, `${q}.mean`),
           sd: expectNonNegative(n.sd, `${q}.sd`),
         };
-        if (obj.confounding !== undefined) cov.confounding = parseConfounding(obj.confounding, `${p}.confounding`, varies, factors);
+        if (obj.between !== undefined) cov.between = parseBetween(obj.between, `${p}.between`, varies, factors);
         return cov;
       }
       case 'uniform': {
@@ -102,20 +109,23 @@ function parseCategories(value: unknown, path: string): { levels: string[]; prob
   return { levels, probabilities: raw.map((x) => x / sum) };
 }
 
-function parseConfounding(value: unknown, path: string, varies: string, factors: readonly ResolvedFactor[]): { factor: string; strength: number } {
+function parseBetween(value: unknown, path: string, varies: string, factors: readonly ResolvedFactor[]): Required<BetweenSpec> {
   const obj = expectObject(value, path);
-  rejectUnknownKeys(obj, ['factor', 'strength'], path);
+  if (obj.strength !== undefined) fail(`${path}.strength: renamed to "share" (the share of the variance between levels)`, `${path}.strength`);
+  rejectUnknownKeys(obj, ['factor', 'share', 'correlation'], path);
   const factor = expectName(obj.factor, `${path}.factor`);
   const names = factors.map((f) => f.name);
   if (!names.includes(factor)) fail(`${path}.factor: unknown factor "${factor}"; factors: ${listNames(names)}`, `${path}.factor`);
   // The shift is per level of `factor`, so each unit the covariate varies by must lie in one such level.
   if (varies !== OBSERVATION && !isNestedWithin(factors, varies, factor)) {
     fail(
-      `${path}.factor: a covariate that varies by "${varies}" can only be confounded with a factor "${varies}" is nested within`,
+      `${path}.factor: a covariate that varies by "${varies}" can only have a share between levels of a factor "${varies}" is nested within`,
       `${path}.factor`,
     );
   }
-  const strength = expectNumber(obj.strength, `${path}.strength`);
-  if (strength < 0 || strength > 1) fail(`${path}.strength: expected a number from 0 to 1, got ${strength}`, `${path}.strength`);
-  return { factor, strength };
+  const share = expectNumber(obj.share, `${path}.share`);
+  if (share < 0 || share > 1) fail(`${path}.share: expected a number from 0 to 1, got ${share}`, `${path}.share`);
+  const correlation = obj.correlation === undefined ? 0 : expectNumber(obj.correlation, `${path}.correlation`);
+  if (correlation < -1 || correlation > 1) fail(`${path}.correlation: expected a number from -1 to 1, got ${correlation}`, `${path}.correlation`);
+  return { factor, share, correlation };
 }

@@ -65,6 +65,13 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
   const catalog = columnCatalog(response, factors, covariates);
   if (obj.truth === undefined) fail(`${path}.truth: expected an object with fixed and sd (required)`, `${path}.truth`);
   const truth = parseTruth(obj.truth, `${path}.truth`, catalog, factors, family, warnings);
+  covariates.forEach((c, i) => {
+    if (c.kind !== 'normal' || c.between === undefined || c.between.correlation === 0) return;
+    if (truth.sd[c.between.factor] === undefined) {
+      const field = `${path}.covariates[${i}].between.correlation`;
+      fail(`${field}: correlates "${c.name}" with the random intercept of "${c.between.factor}", but truth.sd gives "${c.between.factor}" no SD`, field);
+    }
+  });
   if (obj.variants === undefined) fail(`${path}.variants: expected an array of { name, model } (required)`, `${path}.variants`);
   const variants = parseVariants(obj.variants, `${path}.variants`, { catalog, factors, layout, truth }, warnings);
   // The copy kept for the grid has the defaults written out, so a grid can vary them too.

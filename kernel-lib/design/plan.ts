@@ -22,12 +22,12 @@ export class CompiledCovariate {
     readonly a: number,
     /** normal: sd; uniform: max - min. */
     readonly b: number,
-    /** Confounding factor index, or -1. */
+    /** Index of the factor the covariate has a share between (its `between` factor), or -1. */
     readonly confFactor: number,
     /** √strength and √(1 − strength). */
     readonly confWeight: number,
     readonly ownWeight: number,
-    /** For a level-varying confounded covariate: confounding-factor level of each own level. */
+    /** For a level-varying covariate with a between share: between-factor level of each own level. */
     readonly confOfLevel: Int32Array,
     /** Categorical: cumulative probabilities (last entry forced to 1) and labels. */
     readonly cumulative: Float64Array,
@@ -36,11 +36,16 @@ export class CompiledCovariate {
     readonly slot: number,
     /** Per-level values (numeric) or level codes (categorical) for this replicate. */
     readonly levelValue: Float64Array,
-    /** Confounding shifts per level of the confounding factor for this replicate. */
+    /** Shifts per level of the between factor for this replicate. */
     readonly shift: Float64Array,
     /** Balanced allocation of a level-varying categorical covariate: category codes to shuffle, or null. */
     readonly balancedCodes: Int32Array | null = null,
   ) {}
+
+  /** Correlation of the between-level shifts with the factor's standardised random intercept. */
+  effectCorrelation = 0;
+  /** Index into the plan's random terms of the between factor, or -1 (no random intercept in truth). */
+  effectTerm = -1;
 }
 
 /**
@@ -124,12 +129,14 @@ export function compilePlan(design: SurveyDesign): SimulationPlan {
     if (c.kind === 'uniform') {
       return new CompiledCovariate(c.name, KIND_UNIFORM, varies, c.min, c.max - c.min, -1, 0, 1, new Int32Array(0), new Float64Array(0), [], slot, new Float64Array(ownLevels), new Float64Array(0));
     }
-    const conf = c.confounding;
+    const conf = c.between;
     const confFactor = conf === undefined ? -1 : factorIndex.get(conf.factor)!;
     const confOfLevel = conf !== undefined && varies >= 0 ? levelMap(design.factors, c.varies, conf.factor) : new Int32Array(0);
     const shift = new Float64Array(confFactor < 0 ? 0 : design.factors[confFactor].totalLevels);
-    const s = conf === undefined ? 0 : conf.strength;
-    return new CompiledCovariate(c.name, KIND_NORMAL, varies, c.mean, c.sd, confFactor, Math.sqrt(s), Math.sqrt(1 - s), confOfLevel, new Float64Array(0), [], slot, new Float64Array(ownLevels), shift);
+    const s = conf === undefined ? 0 : conf.share;
+    const compiled = new CompiledCovariate(c.name, KIND_NORMAL, varies, c.mean, c.sd, confFactor, Math.sqrt(s), Math.sqrt(1 - s), confOfLevel, new Float64Array(0), [], slot, new Float64Array(ownLevels), shift);
+    compiled.effectCorrelation = conf?.correlation ?? 0;
+    return compiled;
   });
 
   let intercept = 0;
@@ -174,6 +181,8 @@ export function compilePlan(design: SurveyDesign): SimulationPlan {
       slopeSlots: Int32Array.from(r.terms.slice(1), (name) => numericSlot.get(name)!),
     };
   });
+
+  for (const c of covariates) if (c.confFactor >= 0) c.effectTerm = random.findIndex((r) => r.factorIndex === c.confFactor);
 
   return {
     design,

@@ -4,7 +4,7 @@
  *
  * Draw order (fixed, so the same stream gives the same data): (1) when missing > 0, one
  * uniform per row of the complete layout decides whether it is dropped; (2) random effects
- * factor by factor, level by level, b = L z; (3) covariates that vary by a factor (confounding
+ * factor by factor, level by level, b = L z; (3) covariates that vary by a factor (between-level
  * shifts first, then one value per level); (4) for the kept rows in layout order: each
  * observation-level covariate in declared order (a whole column at a time), then the responses.
  *
@@ -206,7 +206,7 @@ function drawLevelValues(ws: SimulationWorkspace, stream: Stream): void {
     }
   }
   for (const c of plan.covariates) {
-    if (c.confFactor >= 0) for (let g = 0; g < c.shift.length; g++) c.shift[g] = stream.normal();
+    if (c.confFactor >= 0) drawShifts(c, plan, ws, stream);
     if (c.variesFactor < 0) continue;
     const lv = c.levelValue;
     if (c.balancedCodes) {
@@ -221,6 +221,26 @@ function drawLevelValues(ws: SimulationWorkspace, stream: Stream): void {
     }
     for (let g = 0; g < lv.length; g++) lv[g] = drawCovariate(c, stream, c.confFactor >= 0 ? c.confOfLevel[g] : 0);
   }
+}
+
+/**
+ * Between-level shifts a_g of a covariate, one standard normal per level of its between factor;
+ * with a correlation ρ to that factor's random intercept b_g = L₀₀ z_g (L₀₀ > 0),
+ * a_g = ρ z_g + √(1 − ρ²) f_g, still standard normal and with corr(a_g, b_g) = ρ. Same draws either way.
+ */
+function drawShifts(c: CompiledCovariate, plan: SimulationPlan, ws: SimulationWorkspace, stream: Stream): void {
+  const shift = c.shift;
+  const rho = c.effectCorrelation;
+  const r = c.effectTerm >= 0 ? plan.random[c.effectTerm] : undefined;
+  const sd = r === undefined ? 0 : r.cholesky[0];
+  if (rho === 0 || r === undefined || !(sd > 0)) {
+    for (let g = 0; g < shift.length; g++) shift[g] = stream.normal();
+    return;
+  }
+  const effects = ws.effectValues[c.effectTerm];
+  const k = r.k;
+  const own = Math.sqrt(1 - rho * rho);
+  for (let g = 0; g < shift.length; g++) shift[g] = (rho * effects[g * k]) / sd + own * stream.normal();
 }
 
 /**
@@ -348,7 +368,7 @@ function assemble(plan: SimulationPlan, n: number, out: Outputs, effectValues: F
 }
 
 /**
- * One covariate value for a level: normal (with its confounding shift for level `confLevel`),
+ * One covariate value for a level: normal (with its between-level shift for level `confLevel`),
  * uniform, or the code of a category.
  */
 function drawCovariate(c: CompiledCovariate, stream: Stream, confLevel: number): number {

@@ -29,14 +29,19 @@ export interface UniformSpec {
 
 /**
  * A normal covariate whose values partly vary between levels of `factor`:
- * x = mean + sd · (√strength · a_g + √(1 − strength) · e), a_g per level g of the factor and e per
+ * x = mean + sd · (√share · a_g + √(1 − share) · e), a_g per level g of the factor and e per
  * unit (observation or level of `varies`) both standard normal. The population variance stays
- * sd², and the share `strength` of it lies between levels of the factor (intraclass correlation).
+ * sd², and the share `share` of it lies between levels of the factor (intraclass correlation).
+ * With `correlation` ρ, a_g = ρ·z_g + √(1 − ρ²)·f_g where z_g is the factor's standardised true
+ * random intercept at level g: the covariate's between-level part is then correlated with the
+ * group effect, which confounds a random-intercept slope (Hausman 1978, Econometrica 46:1251).
  */
-export interface ConfoundingSpec {
+export interface BetweenSpec {
   factor: string;
   /** In [0, 1]. */
-  strength: number;
+  share: number;
+  /** In [-1, 1]; needs a random intercept SD for `factor` in truth.sd. Default 0. */
+  correlation?: number;
 }
 
 export interface CovariateSpec {
@@ -48,8 +53,8 @@ export interface CovariateSpec {
   uniform?: UniformSpec;
   /** Category label -> probability (summing to 1). Reference level: first label in sorted order. */
   categories?: Record<string, number>;
-  /** Only with `normal`. */
-  confounding?: ConfoundingSpec;
+  /** Only with `normal`: the share of its variance between levels of a factor, and its correlation with that factor's effects. */
+  between?: BetweenSpec;
   /**
    * Only with `categories`: "random" draws each unit's category independently; "balanced" gives
    * the categories to exactly round(probability × units) units (largest remainders), shuffled anew in
@@ -129,7 +134,7 @@ export interface ResolvedFactor {
 }
 
 export type ResolvedCovariate =
-  | { kind: 'normal'; name: string; varies: string; mean: number; sd: number; confounding?: ConfoundingSpec }
+  | { kind: 'normal'; name: string; varies: string; mean: number; sd: number; between?: Required<BetweenSpec> }
   | { kind: 'uniform'; name: string; varies: string; min: number; max: number }
   | { kind: 'categorical'; name: string; varies: string; levels: string[]; probabilities: number[]; allocation: 'random' | 'balanced' };
 

@@ -5,7 +5,7 @@
  */
 import { describeValue, listNames } from '../model/errors';
 import { parseModel } from '../model/parse';
-import { INTERACTION_SEPARATOR, INTERCEPT, NESTING_SEPARATOR, levelName, productName, termColumns } from '../model/terms';
+import { INTERACTION_SEPARATOR, INTERCEPT, NESTING_SEPARATOR, groupMeanName, levelName, productName, termColumns } from '../model/terms';
 import type { FixedTerm, GroupSpec, ResolvedModel } from '../model/types';
 import { expectArray, expectObject, fail, rejectUnknownKeys } from './checks';
 import { allColumns, type ColumnCatalog } from './columns';
@@ -145,7 +145,7 @@ function columnNames(column: string, model: ResolvedModel, levels: Map<string, s
   return ls.filter((l) => l !== ref).map((l) => levelName(column, l));
 }
 
-/** Fixed-effect coefficient names in model order: intercept, fixed terms, then fixed grouping factors. */
+/** Fixed-effect coefficient names in model order: intercept, fixed terms, group means of split covariates, then fixed grouping factors. */
 export function variantCoefficients(model: ResolvedModel, levels: Map<string, string[]>): string[] {
   const names = model.intercept ? [INTERCEPT] : [];
   // without an intercept the first categorical main effect has one coefficient per level (data/build-design)
@@ -154,6 +154,7 @@ export function variantCoefficients(model: ResolvedModel, levels: Map<string, st
     const column = termColumns(term)[0];
     names.push(...(i === full ? levels.get(column)!.map((l) => levelName(column, l)) : fixedTermNames(term, model, levels)));
   });
+  for (const g of model.groups) for (const c of g.split ?? []) names.push(groupMeanName(c, g.factor));
   for (const g of model.groups) if (g.as === 'fixed') names.push(...columnNames(g.factor, model, levels, g.reference));
   return names;
 }

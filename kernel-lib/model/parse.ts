@@ -17,6 +17,7 @@
  * - `reference` may be given as a number in JSON; it is stored as text, as levels are.
  * - The interval method is any non-empty text; the fitting engine checks that it knows it.
  * - `intercept: false` needs at least one fixed term.
+ * - `split` names fixed main-effect terms (numeric columns, checked when the design is built).
  */
 import { checkChoice, checkLevel } from './option-checks';
 import { QuadratInputError, describeValue, listNames } from './errors';
@@ -34,7 +35,7 @@ import type {
 } from './types';
 
 const MODEL_KEYS = ['response', 'fixed', 'intercept', 'groups', 'estimation', 'categorical', 'missing', 'interval', 'level', 'family', 'trials', 'offset', 'integration', 'nodes'];
-const GROUP_KEYS = ['factor', 'as', 'within', 'slopes', 'correlated', 'reference'];
+const GROUP_KEYS = ['factor', 'as', 'within', 'slopes', 'split', 'correlated', 'reference'];
 const CATEGORICAL_TERM_KEYS = ['column', 'reference'];
 const ROLES: readonly GroupRole[] = ['random', 'fixed'];
 const ESTIMATIONS: readonly Estimation[] = ['REML', 'ML'];
@@ -109,6 +110,7 @@ function copyGroup(g: GroupSpec): GroupSpec {
   const out: GroupSpec = { factor: g.factor, as: g.as };
   if (g.within !== undefined) out.within = g.within;
   out.slopes = [...(g.slopes ?? [])];
+  if (g.split !== undefined) out.split = [...g.split];
   if (g.correlated !== undefined) out.correlated = g.correlated;
   if (g.reference !== undefined) out.reference = g.reference;
   return out;
@@ -193,6 +195,15 @@ function parseGroups(value: unknown, path: string, response: string, fixed: Fixe
     }
   });
 
+  // A split covariate replaces its own main-effect column, so it must be one.
+  groups.forEach((g, i) => {
+    (g.split ?? []).forEach((c, j) => {
+      if (!fixed.some((t) => t === c)) {
+        fail(`${path}[${i}].split[${j}]: "${c}" must also be a fixed term (a numeric column) to be split into its ${g.factor} mean and the deviation from it`, `${path}[${i}].split[${j}]`);
+      }
+    });
+  });
+
   // A cycle of `within` links (a within b, b within a) has no outermost level.
   groups.forEach((g, i) => {
     const chain = [g.factor];
@@ -235,6 +246,8 @@ function parseGroup(value: unknown, path: string, response: string): GroupSpec {
     if (s === group.within) fail(`${p}: "${s}" is the outer factor of this group; a slope needs a numeric column`, p);
   });
   group.slopes = slopes;
+  const split = parseNameList(obj.split, `${path}.split`);
+  if (split.length > 0) group.split = split;
 
   if (obj.correlated !== undefined) {
     if (typeof obj.correlated !== 'boolean') {

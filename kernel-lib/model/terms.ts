@@ -75,3 +75,8 @@ export function bracketFormToCurrent(name: string): string | undefined {
 export function productName(left: string, right: string): string {
   return `${left}${INTERACTION_SEPARATOR}${right}`;
 }
+
+/** Name of the group-mean column of a split covariate: `rain_mean_site`. */
+export function groupMeanName(column: string, factor: string): string {
+  return `${column}_mean_${factor}`;
+}

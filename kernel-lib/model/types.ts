@@ -24,6 +24,13 @@ export interface GroupSpec {
   within?: string;
   /** Numeric fixed-part columns whose slopes vary by this factor. Default: none. */
   slopes?: string[];
+  /**
+   * Numeric fixed terms entered as their mean per level of this factor plus the deviation from
+   * it (the within-between split; Bell and Jones 2015, Political Science Research and Methods
+   * 3:133): the coefficient of `x` is then the within-level slope and `x_mean_site` the
+   * between-level slope. Default: none.
+   */
+  split?: string[];
   /** With slopes: whether intercept and slopes are correlated. Default: true. */
   correlated?: boolean;
   /** Reference level when `as: "fixed"`. Default: first level in sorted order. */

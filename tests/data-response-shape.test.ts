@@ -43,4 +43,9 @@ describe('buildDesign carries the warning of a normal-family fit', () => {
     expect(buildDesign(table, model('seen')).warnings.some((w) => w.includes('"seen"') && w.includes('"binomial"'))).toBe(true);
     expect(buildDesign(table, model('height')).warnings).toEqual([]);
   });
+
+  it('stays quiet when the model names a count family', () => {
+    const poisson = parseModel({ response: 'count', fixed: ['x'], groups: [{ factor: 'site', as: 'random' }], family: 'poisson', estimation: 'ML', interval: 'wald' });
+    expect(buildDesign(table, poisson).warnings.some((w) => w.includes('"count"'))).toBe(false);
+  });
 });

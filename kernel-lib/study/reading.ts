@@ -24,6 +24,7 @@ export const READING_Z = 2;
 export const READING_CAUTIONS = [
   'These statements hold for the simulated designs and true values only; a survey that differs (other variances, skewed or count responses, informative gaps) can behave differently.',
   'A factor entered as fixed answers a narrower question: its effects refer to the levels surveyed, not to a wider population of them.',
+  'Confounding is a reason to prefer a fixed factor or the within-between split: when a covariate\'s level means go with the levels\' own effects, the random-intercept slope is biased (simulate it with between.correlation; the correlation assumed is a guess to vary, not a fact).',
   'Defer to a qualified statistician and the survey protocol before deciding.',
 ];
 

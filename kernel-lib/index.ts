@@ -53,6 +53,8 @@ export type { StudyReading, CellReading, CoverageJudgement, CoverageClass, Readi
 export { runPlan, planSentence } from './study/plan-run';
 export type { PlanResult, RunPlanOptions } from './study/plan-run';
 export { parsePlan, GOAL_METRICS } from './study/plan-spec';
+export { planFromPilot } from './study/plan-pilot';
+export type { PilotPlan, PilotPlanCase, PilotPlanOptions } from './study/plan-pilot';
 export type { PlanSpec, PlanGoal } from './study/plan-spec';
 export { planCurve } from './plots/plan-curve';
 export type { PlanCurvePoint, PlanCurveOptions } from './plots/plan-curve';

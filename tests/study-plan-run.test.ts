@@ -1,6 +1,6 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { levelName } from '../kernel-lib/model/terms';
@@ -109,11 +109,20 @@ describe('runPlan', () => {
     await runPlan(small, { out: join(tmp, 'c'), workers: 1 });
     const { plan: _plan, ...study } = small;
     const run = await runStudy({ ...study, replicates: 25, grid: { 'factors.site.levels': [8] } }, { out: join(tmp, 'study'), workers: 1 });
-    const planRows = parseReplicateCsv(readFileSync(join(tmp, 'c', 'values', '8', 'batches', 's0000-b000000.csv'), 'utf8'), 'plan batch');
+    const folder = readdirSync(join(tmp, 'c', 'values')).find((f) => f.startsWith('8-'))!;
+    const planRows = parseReplicateCsv(readFileSync(join(tmp, 'c', 'values', folder, 'batches', 's0000-b000000.csv'), 'utf8'), 'plan batch');
     expect(planRows).toEqual(run.replicates);
   }, 300_000);
 
-  it('refuses a folder holding replicates of another design', async () => {
-    await expect(runPlan({ ...small, seed: 99 }, { out: join(tmp, 'a'), workers: 1 })).rejects.toThrow(/holds replicates of a different design/);
-  }, 60_000);
+  it('keeps the replicates of another design, or of other variants, in folders of their own', async () => {
+    const before = readdirSync(join(tmp, 'a', 'values')).length;
+    const reseeded = await runPlan({ ...small, seed: 99 }, { out: join(tmp, 'a'), workers: 1 });
+    expect(reseeded.replicatesRun).toBeGreaterThan(0);
+    expect(readdirSync(join(tmp, 'a', 'values')).length).toBeGreaterThan(before);
+    // an unused variant is not fitted: the plan's replicates equal those without it
+    const extra = { ...small, variants: [...(small.variants as object[]), { name: 'site ignored', model: { response: 'y', fixed: ['treatment'] } }] };
+    const withExtra = await runPlan(extra, { out: join(tmp, 'a'), workers: 1 });
+    expect(withExtra.replicatesRun).toBe(0);
+    expect(withExtra.probes).toEqual((await runPlan(small, { out: join(tmp, 'a'), workers: 1 })).probes);
+  }, 120_000);
 });

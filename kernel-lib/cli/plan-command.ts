@@ -4,6 +4,9 @@ import { parseArgs } from 'node:util';
 import { planCurveSpecs, planReportHtml } from '../display/plan-report';
 import { QuadratInputError } from '../model/errors';
 import { runPlan } from '../study/plan-run';
+import { planFromPilot } from '../study/plan-pilot';
+import { readCsvFile } from '../data/csv';
+import type { ModelSpec } from '../model/types';
 import { COMMAND_HELP } from './help';
 import { readJsonFile } from './read-json-file';
 
@@ -16,7 +19,8 @@ export const PLAN_USAGE = `quadrat ${COMMAND_HELP['study plan'].usage}`;
  */
 export async function planCommand(argv: string[], print: (s: string) => void): Promise<number> {
   const { values, positionals } = parseArgs({
-    args: argv, allowPositionals: true, strict: true, options: { out: { type: 'string' }, workers: { type: 'string' } },
+    args: argv, allowPositionals: true, strict: true,
+    options: { out: { type: 'string' }, workers: { type: 'string' }, survey: { type: 'string' }, model: { type: 'string' }, 'sd-of': { type: 'string' } },
   });
   if (positionals.length !== 1) throw new QuadratInputError(`study plan: expected one design file; usage: ${PLAN_USAGE}`, { field: 'design' });
   if (!values.out) throw new QuadratInputError('study plan: --out <folder> is required', { field: '--out' });
@@ -25,6 +29,7 @@ export async function planCommand(argv: string[], print: (s: string) => void): P
     throw new QuadratInputError(`--workers: expected a whole number ≥ 1, got "${values.workers}"`, { field: '--workers' });
   }
   const design = readJsonFile(positionals[0], 'design');
+  if (values.survey !== undefined) return pilotPlan(design, values as PilotArgs, workers, print);
   const controller = new AbortController();
   const onSigint = () => {
     controller.abort();
@@ -43,4 +48,27 @@ export async function planCommand(argv: string[], print: (s: string) => void): P
   } finally {
     process.removeListener('SIGINT', onSigint);
   }
+}
+
+interface PilotArgs { out: string; survey: string; model?: string; 'sd-of'?: string }
+
+/**
+ * From a pilot survey: the design is derived from the pilot fit (only the plan block and the seed
+ * of the JSON are used) and planned at both ends and the estimate of the pilot's interval for one SD.
+ */
+async function pilotPlan(json: unknown, args: PilotArgs, workers: number | undefined, print: (s: string) => void): Promise<number> {
+  if (!args.model) throw new QuadratInputError('study plan: --survey needs --model <model.json> (the model fitted to the pilot)', { field: '--model' });
+  if (!args['sd-of']) throw new QuadratInputError('study plan: --survey needs --sd-of <factor> (the random factor whose SD is uncertain)', { field: '--sd-of' });
+  const block = json as { plan?: Record<string, unknown>; seed?: number | string };
+  if (typeof block.plan !== 'object' || block.plan === null) throw new QuadratInputError('plan: the JSON file has no plan block', { field: 'plan' });
+  const model = readJsonFile(args.model, 'model') as ModelSpec;
+  const result = await planFromPilot(readCsvFile(args.survey), model, block.plan, {
+    out: args.out, sdOf: args['sd-of'], workers, seed: block.seed, onProgress: (line) => print(`  ${line}`),
+  });
+  for (const c of result.cases) writeFileSync(join(args.out, c.case.replace(' ', '-'), 'report.html'), await planReportHtml(c.result, `Sample-size plan, SD of ${result.factor} at its ${c.case}`));
+  print('');
+  print(result.sentence);
+  for (const note of result.notes) print(`note: ${note}`);
+  print('The answers hold only for the simulated assumptions; defer to a qualified statistician and local survey protocols.');
+  return 0;
 }

@@ -1,8 +1,8 @@
 /**
  * Run a plan: for each candidate value the search asks about, simulate and fit replicates from
  * the same seeded streams as a study whose grid holds that value (scenario key "vary=value"),
- * checkpointed in batches under <out>/values/<value>/, so a plan is reproducible, resumes after
- * an interruption and reuses every replicate already on disk. Writes <out>/plan.json.
+ * checkpointed in batches under <out>/values/<value>-<design fingerprint>/, so a plan is
+ * reproducible, resumes after an interruption and reuses every replicate already on disk. Writes <out>/plan.json.
  */
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
@@ -153,7 +153,9 @@ function estimatesOf(rows: readonly ReplicateRow[], goals: readonly PlanGoal[], 
 export async function runPlan(input: unknown, options: RunPlanOptions): Promise<PlanResult> {
   const started = Date.now();
   const { design, plan } = parsePlan(input);
-  const base = { ...design, replicates: 1 };
+  // only the variants the goals name are fitted: the simulated data do not depend on the others
+  const used = new Set(plan.goals.map((g) => g.variant));
+  const base = { ...design, replicates: 1, variants: (design.variants as { name: string }[]).filter((v) => used.has(v.name)) };
   const variants = parseDesign(base).variants.map((v) => ({ name: v.name, model: v.model }));
   const batchSize = DEFAULT_BATCH_SIZE;
   mkdirSync(options.out, { recursive: true });
@@ -167,12 +169,11 @@ export async function runPlan(input: unknown, options: RunPlanOptions): Promise<
     if (entry) return entry;
     const value = plan.values[index];
     const source = { ...base, grid: { [plan.vary]: [value] } };
-    const folder = join(options.out, 'values', valueFolder(value));
+    const fingerprint = fingerprintOf(source, 0, batchSize, variants);
+    // one folder per value and design: another design (or other variants) never mixes into it
+    const folder = join(options.out, 'values', `${valueFolder(value)}-${fingerprint.slice(0, 8)}`);
     mkdirSync(join(folder, 'batches'), { recursive: true });
-    const identity = {
-      format: 'quadrat-plan-value/1', key: scenarioKey({ [plan.vary]: value }, [plan.vary]), value, batchSize,
-      fingerprint: fingerprintOf(source, 0, batchSize, variants),
-    };
+    const identity = { format: 'quadrat-plan-value/1', key: scenarioKey({ [plan.vary]: value }, [plan.vary]), value, batchSize, fingerprint };
     const path = join(folder, 'value.json');
     if (existsSync(path)) {
       const old = JSON.parse(readFileSync(path, 'utf8')) as typeof identity;

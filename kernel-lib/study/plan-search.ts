@@ -99,7 +99,10 @@ export async function searchPlan(
   shouldStop: () => boolean = () => false,
 ): Promise<SearchOutcome> {
   const probes = new Map<number, Probe>();
-  const first = Math.ceil(options.firstReplicates / options.step) * options.step;
+  // whole batches only: the first look and the cap are rounded up to the batch size
+  const cap = Math.ceil(options.maxReplicates / options.step) * options.step;
+  options = { ...options, maxReplicates: cap };
+  const first = Math.min(cap, Math.ceil(options.firstReplicates / options.step) * options.step);
   const probe = async (index: number): Promise<Probe> => {
     let n = Math.min(options.maxReplicates, Math.max(first, probes.get(index)?.replicates ?? 0));
     for (;;) {

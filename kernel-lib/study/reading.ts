@@ -89,10 +89,12 @@ export function percentLevel(level: number): string {
   return `${Number((100 * level).toFixed(1))}%`;
 }
 
+const NO_GRID_LABEL = 'the design';
+
 /** "year levels = 3, sd site = 0.5" for each scenario key ("the design" without a grid). */
 export function scenarioLabels(scenarios: StudyManifest['scenarios']): Map<string, string> {
   return new Map(
-    scenarios.map((s) => [s.key, Object.entries(s.values).map(([p, v]) => `${scenarioFieldName(p)} = ${v}`).join(', ') || 'the design']),
+    scenarios.map((s) => [s.key, Object.entries(s.values).map(([p, v]) => `${scenarioFieldName(p)} = ${v}`).join(', ') || NO_GRID_LABEL]),
   );
 }
 
@@ -194,7 +196,7 @@ function readCell(metrics: readonly MetricRow[], scenario: string, label: string
   const under = cells.filter((c) => c.coverage.class === 'undercovers');
   const undecided = cells.filter((c) => c.coverage.class === 'undecided');
   const nominal = percentLevel(cells[0].coverage.nominal);
-  const parts = [`At ${label}, intervals for \`${parameter}\` (nominal ${nominal}) cover ${cells.map(describeVariant).join('; ')}.`];
+  const parts = [`${capitalise(where(label))}, intervals for \`${parameter}\` (nominal ${nominal}) cover ${cells.map(describeVariant).join('; ')}.`];
   let recommend: string[] = [];
   const n = Math.max(...cells.map((c) => c.coverage.n));
   if (covers.length && under.length && !undecided.length) {
@@ -233,6 +235,13 @@ function readCell(metrics: readonly MetricRow[], scenario: string, label: string
   return { scenario, label, parameter, variants: cells, recommend, text: parts.join(' ') };
 }
 
+/** "at year levels = 3", or "in the design" for a study without a grid. */
+function where(label: string): string {
+  return label === NO_GRID_LABEL ? `in ${label}` : `at ${label}`;
+}
+
+const capitalise = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
+
 function signedPercent(rel: number): string {
   const p = Math.round(100 * rel);
   return p >= 0 ? `+${p}%` : `${p}%`;
@@ -249,8 +258,8 @@ function answerFor(parameter: string, cells: readonly CellReading[], variants: r
     if (!present.length) return `**${v}** has no intervals for it`;
     if (!under.length && !undecided.length) return `**${v}** keeps coverage in ${present.length === 1 ? 'the scenario' : `all ${present.length} scenarios`}`;
     const bits: string[] = [];
-    if (under.length) bits.push(`undercovers at ${under.map((c) => c.label).join('; ')}`);
-    if (undecided.length) bits.push(`is not yet clear at ${undecided.map((c) => c.label).join('; ')}`);
+    if (under.length) bits.push(`undercovers ${under.map((c) => where(c.label)).join('; ')}`);
+    if (undecided.length) bits.push(`is not yet clear ${undecided.map((c) => where(c.label)).join('; ')}`);
     return `**${v}** ${bits.join(' and ')}`;
   });
   const everywhere = variants.filter((v) => mine.length > 0 && mine.every((c) => c.recommend.includes(v)));

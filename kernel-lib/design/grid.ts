@@ -3,7 +3,7 @@
  * a copy of the design JSON and resolved again. Combinations run in the grid's key order with
  * the first key slowest (nested loops). A scenario's key ("factors.year.levels=3|truth.sd.site=0.5")
  * depends only on the grid paths, their order and the values; it seeds the streams, e.g.
- * streamFamily(design.seed, scenario.key).stream(replicate). Top-level fields with defaults (perCell,
+ * replicateStreams(design.seed, scenario.key).stream(replicate). Top-level fields with defaults (perCell,
  * missing, response, family) can be varied even when the design leaves them out.
  */
 import { QuadratInputError } from '../model/errors';

@@ -99,20 +99,20 @@ function fmix32(h: number): number {
   return h | 0;
 }
 
-/** Many streams under one key: `stream(i)` equals no other index's and needs no re-seeding. */
-export interface StreamFamily {
+/** Many streams under one key (one per replicate): `stream(i)` equals no other index's and needs no re-seeding. */
+export interface ReplicateStreams {
   readonly key: string;
   stream(index: number): Stream;
 }
 
 /**
- * A family of streams: the key is hashed once by seedrandom (as in createStream), and member i
+ * A set of streams for the replicates of one key: the key is hashed once by seedrandom (as in createStream), and member i
  * gets the four seed words mixed with i through the MurmurHash3 finaliser, in the manner of
  * SplitMix seeding (Steele, Lea and Flood 2014, OOPSLA). Deriving a member costs a few integer
  * operations instead of a full seedrandom key schedule, which matters when a study seeds one
  * stream per replicate. Members depend only on (key parts, i).
  */
-export function streamFamily(...keyParts: KeyPart[]): StreamFamily {
+export function replicateStreams(...keyParts: KeyPart[]): ReplicateStreams {
   const key = streamKey(...keyParts);
   const arc4 = seedrandom(key);
   const b0 = arc4.int32();
@@ -123,7 +123,7 @@ export function streamFamily(...keyParts: KeyPart[]): StreamFamily {
     key,
     stream(index: number): Stream {
       if (!Number.isInteger(index) || index < 0 || index > 0x7fffffff) {
-        throw new RangeError(`streamFamily.stream(i): i must be an integer from 0 to 2^31 - 1, got ${index}`);
+        throw new RangeError(`replicateStreams.stream(i): i must be an integer from 0 to 2^31 - 1, got ${index}`);
       }
       const x = Math.imul(index + 1, 0x9e3779b9);
       const gen = new Xoshiro128(fmix32(b0 ^ x), fmix32(b1 ^ fmix32(x + 1)), fmix32(b2 ^ fmix32(x + 2)), fmix32(b3 ^ fmix32(x + 3)));

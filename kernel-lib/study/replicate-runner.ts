@@ -8,7 +8,7 @@ import { expandGrid, type Scenario } from '../design/grid';
 import { TargetProjector } from '../design/realised-truth';
 import { createWorkspace, simulateInto, simulationPlan, type SimulatedData } from '../design/simulate';
 import type { ResolvedVariant, SurveyDesign } from '../design/types';
-import { streamFamily, type StreamFamily } from '../random/stream';
+import { replicateStreams, type ReplicateStreams } from '../random/stream';
 import type { ReplicateKind, ReplicateRow, ReplicateStatus } from './replicate-row';
 
 /** Name of the SD parameter of a random term ("sd(site)", "sd(site:x)") or of the residual ("sd(residual)"). */
@@ -25,7 +25,7 @@ export function sdParameterName(factor: string, term: string): string {
 export class ReplicateRunner {
   readonly scenarios: Scenario[];
   private readonly workspaces = new Map<number, ReturnType<typeof createWorkspace>>();
-  private readonly families = new Map<number, StreamFamily>();
+  private readonly streams = new Map<number, ReplicateStreams>();
   /** Alias priority per variant, reused while the design's column names stay the same. */
   private readonly priorities = new Map<ResolvedVariant, { names: string[]; order: number[] }>();
 
@@ -58,12 +58,12 @@ export class ReplicateRunner {
       this.workspaces.set(scenarioIndex, ws);
     }
     // one stream per (study seed, scenario key, replicate): independent of workers, order and shards
-    let family = this.families.get(scenarioIndex);
-    if (!family) {
-      family = streamFamily(this.design.seed, scenario.key);
-      this.families.set(scenarioIndex, family);
+    let streams = this.streams.get(scenarioIndex);
+    if (!streams) {
+      streams = replicateStreams(this.design.seed, scenario.key);
+      this.streams.set(scenarioIndex, streams);
     }
-    return simulateInto(ws, family.stream(replicate));
+    return simulateInto(ws, streams.stream(replicate));
   }
 
   private priorityFor(variant: ResolvedVariant, design: DesignMatrices): number[] {

@@ -12,7 +12,7 @@ import { expectArray, expectInteger, expectName, expectNonNegative, expectNumber
 import { columnCatalog } from './columns';
 import { parseCovariates } from './covariates';
 import { parseFactors } from './factors';
-import { RESPONSE_FAMILIES } from './family';
+import { RESPONSE_FAMILIES, responseFamily } from '../family/index';
 import { resolveGridPath } from './grid-path';
 import { buildLayout } from './layout';
 import { parseTruth } from './truth';
@@ -50,7 +50,7 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
   });
 
   const familyName = obj.family === undefined ? DESIGN_DEFAULTS.family : obj.family;
-  const family = typeof familyName === 'string' ? RESPONSE_FAMILIES[familyName] : undefined;
+  const family = responseFamily(familyName);
   if (family === undefined) {
     fail(`${path}.family: expected one of ${listNames(Object.keys(RESPONSE_FAMILIES))}, got ${describeValue(familyName)}`, `${path}.family`);
   }

@@ -2,7 +2,7 @@
  * A survey design compiled for fast repeated simulation: the layout, flat arrays of truth
  * terms and random-effect factors, and reusable scratch space. Built once per design.
  */
-import { RESPONSE_FAMILIES, type FamilyParams, type ResponseFamily } from './family';
+import { RESPONSE_FAMILIES, type FamilyName, type FamilyParams, type ResponseFamily } from '../family/index';
 import { levelMap } from './factors';
 import { buildLayout, type Layout } from './layout';
 import type { SurveyDesign } from './types';
@@ -199,7 +199,7 @@ export function compilePlan(design: SurveyDesign): SimulationPlan {
     partSlot,
     partLevel,
     random,
-    family: RESPONSE_FAMILIES[design.family],
+    family: RESPONSE_FAMILIES[design.family as FamilyName]!,
     familyParams: design.truth.familyParams,
   };
 }

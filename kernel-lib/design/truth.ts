@@ -3,7 +3,7 @@ import { listNames } from '../model/errors';
 import { bracketFormToCurrent, INTERACTION_SEPARATOR, INTERCEPT, levelName, splitLevelName } from '../model/terms';
 import { expectNonNegative, expectNumber, expectObject, fail, keyPath, rejectUnknownKeys } from './checks';
 import type { ColumnCatalog } from './columns';
-import type { ResponseFamily } from './family';
+import type { ResponseFamily } from '../family/index';
 import type { RandomTruth, ResolvedFactor, ResolvedTruth, TruthPart, TruthTerm } from './types';
 
 const TRUTH_KEYS = ['fixed', 'sd', 'slopes', 'correlations'];

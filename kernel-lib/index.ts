@@ -15,13 +15,13 @@ export { describeSurvey } from './data/describe-survey';
 export type { SurveySummary, FactorSummary, FactorPairSummary } from './data/describe-survey';
 
 // Fitting
-export { fitModel, aliasPriority } from './fit/fit-model';
-export type { SurveyData } from './fit/fit-model';
+export { fitModel } from './analyse/fit-model';
+export type { SurveyData } from './analyse/fit-model';
 export { fitDesign, INTERVAL_METHODS } from './fit/fit-design';
 export type { FitOptions, IntervalMethod } from './fit/fit-design';
 export { remlComparisonCaution } from './fit/comparison';
 export type { FitResult, FixedEffectRow, VarianceComponentRow, CorrelationRow, ConditionalModeRow } from './fit/result';
-export type { DesignMatrices, RandomTerm } from './fit/design';
+export type { DesignMatrices, RandomTerm } from './data/design-matrices';
 export { contrastTest, termTest, termCoefficients, likelihoodRatioTest, bootstrapFit } from './fit/inference/index';
 export type { ContrastTestResult, TermTestKind, TermTestResult, LikelihoodRatioTest, BootstrapFitOptions } from './fit/inference/index';
 

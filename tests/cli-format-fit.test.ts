@@ -3,7 +3,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { formatFit } from '../kernel-lib/cli/format-fit';
 import { readCsvFile } from '../kernel-lib/data/csv';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 import { parseModel } from '../kernel-lib/model/parse';
 
 const ROOT = join(__dirname, '..');

@@ -3,7 +3,7 @@ import { Matrix, solve } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { buildDesign, extractResponse } from '../kernel-lib/data/build-design';
 import { columnsFromRecords, columnsFromTable, toColumns, type Columns } from '../kernel-lib/data/columns';
-import type { DesignMatrices } from '../kernel-lib/fit/design';
+import type { DesignMatrices } from '../kernel-lib/data/design-matrices';
 import { parseModel } from '../kernel-lib/model/parse';
 import type { ModelSpec } from '../kernel-lib/model/types';
 import { inputError } from './helpers/input-error';
@@ -217,6 +217,24 @@ describe('buildDesign: fixed grouping factors', () => {
       groups: [{ factor: 'site', as: 'fixed', reference: 'C' }],
     });
     expect(d.fixedNames).toEqual(['intercept', 'x', 'x:site=A', 'x:site=B', 'site=A', 'site=B']);
+  });
+
+  it('each column carries its role, so the engine never reads names (definition of the coding above)', () => {
+    const d = design(quadrats, {
+      response: 'y',
+      fixed: ['x', 'habitat', 'x:z', 'x:habitat'],
+      groups: [{ factor: 'site', as: 'fixed', slopes: ['x'] }, { factor: 'season', as: 'random' }],
+    });
+    const named = Object.fromEntries(d.fixedNames.map((name, j) => [name, d.roles[j]]));
+    expect(d.roles).toHaveLength(d.p);
+    expect(named['intercept']).toEqual({ kind: 'intercept', sources: [] });
+    expect(named['x']).toEqual({ kind: 'covariate', sources: ['x'] });
+    expect(named['x:z']).toEqual({ kind: 'covariate', sources: ['x', 'z'] });
+    expect(named['habitat=wet']).toEqual({ kind: 'factor-level', sources: ['habitat'] });
+    expect(named['x:habitat=wet']).toEqual({ kind: 'interaction', sources: ['x', 'habitat'] });
+    // columns of a grouping factor entered as fixed name it, wherever they come from
+    expect(named['x:site=B']).toEqual({ kind: 'interaction', sources: ['x', 'site'], fixedGroup: 'site' });
+    expect(named['site=C']).toEqual({ kind: 'factor-level', sources: ['site'], fixedGroup: 'site' });
   });
 });
 

@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'fs';
 import { join } from 'path';
 import { readCsvFile } from '../kernel-lib/data/csv';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 import type { FitResult } from '../kernel-lib/fit/result';
 import { parseModel } from '../kernel-lib/model/parse';
 import { DEMO_COLUMNS, DEMO_TRUTH, demoRowsToCsv, makeDemoRows } from '../data/make-demo';

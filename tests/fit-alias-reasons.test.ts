@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 
 /** Habitat × season counts with one cell left empty. */
 function cells(skip: [string, string] | null) {

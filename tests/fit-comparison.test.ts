@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { remlComparisonCaution } from '../kernel-lib/fit/comparison';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 import { formatComparison } from '../kernel-lib/cli/compare-fits';
 import { fitStatusRows } from '../kernel-lib/notebook/fit-tables';
 import type { ModelSpec } from '../kernel-lib/model/types';

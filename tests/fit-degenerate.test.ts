@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import type { ModelSpec } from '../kernel-lib/model/types';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 import { degenerateReason } from '../kernel-lib/fit/degenerate';
 import { handDesign } from './helpers/simple-design';
 

@@ -6,7 +6,8 @@ import { Matrix, inverse } from 'ml-matrix';
 import { readCsvFile } from '../kernel-lib/data/csv';
 import { buildDesign } from '../kernel-lib/data/build-design';
 import { parseModel } from '../kernel-lib/model/parse';
-import { fitModel, checkInterval, aliasPriority } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
+import { checkInterval } from '../kernel-lib/fit/check-fit-options';
 import { fitDesign, INTERVAL_METHODS } from '../kernel-lib/fit/fit-design';
 import { termTest, termCoefficients } from '../kernel-lib/fit/inference/contrast-test';
 import { KR_MAX_DIMENSION } from '../kernel-lib/fit/inference/kenward-roger';
@@ -68,7 +69,7 @@ describe('F test of a categorical term on the demo survey (year entered as fixed
   const data = readCsvFile(CSV);
   const model = parseModel(JSON.parse(readFileSync(MODEL_YEAR_FIXED, 'utf8')));
   const design = buildDesign(data, model);
-  const fit = fitDesign(design, { aliasPriority: aliasPriority(design, model) });
+  const fit = fitDesign(design);
 
   it('selects every year[level] coefficient', () => {
     expect(termCoefficients(design.fixedNames, 'year')).toEqual(['year=2022', 'year=2023', 'year=2024']);

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'fs';
 import { join } from 'path';
 import { readCsvFile } from '../kernel-lib/data/csv';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 import { conditionalModes, fixedEffectsCompare, groupData, normalQuantile, residualsVsFitted } from '../kernel-lib/plots';
 import { expectValidAndRendered, markItems } from './helpers/vega-lite-checks';
 

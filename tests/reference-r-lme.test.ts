@@ -30,7 +30,7 @@ import { spawnSync } from 'child_process';
 import { readCsvFile } from '../kernel-lib/data/csv';
 import { buildDesign } from '../kernel-lib/data/build-design';
 import type { Columns } from '../kernel-lib/data/columns';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 import { ProfiledDeviance } from '../kernel-lib/fit/profiled-deviance';
 import { parseModel } from '../kernel-lib/model/parse';
 import type { FitResult } from '../kernel-lib/fit/result';

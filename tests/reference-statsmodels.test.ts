@@ -20,7 +20,7 @@ import { spawnSync } from 'child_process';
 import { CholeskyDecomposition, Matrix } from 'ml-matrix';
 import { readCsvFile } from '../kernel-lib/data/csv';
 import type { Columns } from '../kernel-lib/data/columns';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 import type { CorrelationRow, FitResult } from '../kernel-lib/fit/result';
 import type { ModelSpec } from '../kernel-lib/model/types';
 

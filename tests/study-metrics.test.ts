@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import seedrandom from 'seedrandom';
 import { ReplicateRow, ReplicateStatus } from '../kernel-lib/study/replicate-row';
-import { MetricName, MetricRow, formatMetric, summarise, toWideTable } from '../kernel-lib/study/metrics';
+import { MetricName, MetricRow, formatMetric, summarise } from '../kernel-lib/study/metrics';
+import { toWideTable } from '../kernel-lib/study/wide-table';
 import { medianOfSorted, medianStandardError, sortedCopy } from '../kernel-lib/study/quantile';
 
 // Invented study table: scenario 'A', variants 'siteRandom' (6 replicates) and 'siteFixed'

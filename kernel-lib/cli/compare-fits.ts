@@ -1,6 +1,6 @@
 import type { FitResult } from '../fit/result';
 import { remlComparisonCaution } from '../fit/comparison';
-import { renderTable, type Cell } from './text-table';
+import { renderTable, type Cell } from '../display/text-table';
 
 /** Side-by-side fixed effects and variance components of several fits of the same data. */
 export function formatComparison(fits: { name: string; fit: FitResult }[]): string {

@@ -1,7 +1,7 @@
 import { readJsonFile } from './read-json-file';
 import { parseArgs } from 'node:util';
 import { checkCsvOptions, readCsvFile, type CsvOptions } from '../data/csv';
-import { fitModel } from '../fit/fit-model';
+import { fitResolvedModel } from '../analyse/fit-model';
 import { parseModel } from '../model/parse';
 import { QuadratInputError } from '../model/errors';
 import { checkLevel } from '../model/option-checks';
@@ -39,7 +39,7 @@ export function fitCommand(argv: string[], print: (s: string) => void): number {
     raw = { ...raw, level: checkLevel(values.level.trim() === '' ? NaN : Number(values.level), '--level') };
   }
   const model = parseModel(raw);
-  const fit = fitModel(data, model);
+  const fit = fitResolvedModel(data, model);
   print(values.json ? JSON.stringify(fitToJson(fit, model.level), null, 2) : formatFit(fit, model.level, `${model.response}: fit of ${values.model} to ${values.data}`, model));
   return fit.failure ? 1 : 0;
 }

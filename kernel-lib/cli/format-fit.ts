@@ -1,5 +1,5 @@
 import type { FitResult } from '../fit/result';
-import { formatNumber, renderTable, type Cell } from './text-table';
+import { formatNumber, renderTable, type Cell } from '../display/text-table';
 
 /** The JSON document printed by `quadrat fit --json` (documented in DEVELOPERS.md). */
 export function fitToJson(fit: FitResult, level: number) {

@@ -1,6 +1,6 @@
 import type { MetricRow } from '../study/metrics';
 import { formatMetric } from '../study/format-metric';
-import { renderTable, type Cell } from './text-table';
+import { renderTable, type Cell } from '../display/text-table';
 
 /** Metrics shown by default, in this order, when present. */
 export const DEFAULT_METRICS = ['coverage', 'noIntervalShare', 'bias', 'rmse', 'width', 'power', 'typeIError', 'sdMean', 'sdMedian', 'singularShare', 'failureShare', 'notEstimableShare'];

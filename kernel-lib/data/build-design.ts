@@ -31,7 +31,7 @@
  *
  * Rank deficiency is left to the engine: no column is dropped here.
  */
-import type { DesignMatrices, RandomTerm } from '../fit/design';
+import type { ColumnRole, DesignMatrices, RandomTerm } from './design-matrices';
 import { QuadratInputError, listNames } from '../model/errors';
 import { INTERCEPT, groupMeanName, isInteraction, levelName, productName, termColumns, termLabel } from '../model/terms';
 import type { GroupSpec, ResolvedModel } from '../model/types';
@@ -147,15 +147,20 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
 
   // Fixed terms.
   const fixedNames: string[] = model.intercept ? [INTERCEPT] : [];
+  const roles: ColumnRole[] = model.intercept ? [{ kind: 'intercept', sources: [] }] : [];
+  const fixedGroups = new Set(model.groups.filter((g) => g.as === 'fixed').map((g) => g.factor));
   const blocks: FixedBlock[] = [];
   const fullTerm = model.intercept ? -1 : model.fixed.findIndex((t) => !isInteraction(t) && kindOf(termLabel(t)) === 'categorical');
   model.fixed.forEach((term, i) => {
     const field = `model.fixed[${i}]`;
     const full = i === fullTerm;
-    const parts = full ? [fullCoding(data, rowIds, termLabel(term))] : termColumns(term).map((c) => codingOf(c, field));
+    const sources = termColumns(term);
+    const parts = full ? [fullCoding(data, rowIds, termLabel(term))] : sources.map((c) => codingOf(c, field));
     const names = parts.length === 1 ? parts[0].names : productNames(parts[0].names, parts[1].names);
     blocks.push({ parts, offset: fixedNames.length, width: names.length });
     fixedNames.push(...names);
+    const role = termRole(sources, parts, fixedGroups);
+    for (let k = 0; k < names.length; k++) roles.push(role);
   });
 
   // Grouping factors.
@@ -231,7 +236,13 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
       const coding = treatmentCoding(g.factor, factor, g.reference, `${field}.reference`);
       groupBlocks.push({ coding, slopes, offset: fixedNames.length });
       fixedNames.push(...coding.names);
-      (g.slopes ?? []).forEach((s) => fixedNames.push(...coding.names.map((name) => productName(s, name))));
+      const level: ColumnRole = { kind: 'factor-level', sources: [g.factor], fixedGroup: g.factor };
+      for (let k = 0; k < coding.names.length; k++) roles.push(level);
+      (g.slopes ?? []).forEach((s) => {
+        fixedNames.push(...coding.names.map((name) => productName(s, name)));
+        const slope: ColumnRole = { kind: 'interaction', sources: [s, g.factor], fixedGroup: g.factor };
+        for (let k = 0; k < coding.names.length; k++) roles.push(slope);
+      });
     }
   });
 
@@ -255,7 +266,7 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
   for (const b of blocks) fillFixedBlock(X, p, n, b);
   for (const b of groupBlocks) fillGroupBlock(X, p, n, b);
 
-  return { n, p, X, fixedNames, y, random, levelCounts, droppedRows, rowIds, warnings, ...countColumns };
+  return { n, p, X, fixedNames, roles, y, random, levelCounts, droppedRows, rowIds, warnings, ...countColumns };
 }
 
 /**
@@ -393,6 +404,14 @@ function randomTerm(g: GroupSpec, factor: SortedFactor, slopes: Float64Array[]):
     values,
     correlated: g.correlated ?? true,
   };
+}
+
+/** Role of the columns of one fixed term (every column of a term shares it). */
+function termRole(sources: string[], parts: Coding[], fixedGroups: Set<string>): ColumnRole {
+  const dummies = parts.some((c) => c.kind === 'categorical');
+  const kind = !dummies ? 'covariate' : parts.length === 1 ? 'factor-level' : 'interaction';
+  const fixedGroup = sources.find((c, i) => parts[i].kind === 'categorical' && fixedGroups.has(c));
+  return fixedGroup === undefined ? { kind, sources } : { kind, sources, fixedGroup };
 }
 
 function productNames(left: string[], right: string[]): string[] {

@@ -1,7 +1,7 @@
 import { describeSurvey, type SurveySummary } from '../data/describe-survey';
 import { toColumns, type Columns } from '../data/columns';
 import { isMissing } from '../data/missing';
-import { fitModel, type SurveyData } from '../fit/fit-model';
+import { fitModel, type SurveyData } from '../analyse/fit-model';
 import type { FitResult } from '../fit/result';
 import { parseModel } from '../model/parse';
 import { involvesLevelOf, termColumns } from '../model/terms';

@@ -5,7 +5,7 @@
  */
 import { Columns, TableLike, columnLength, toColumns } from '../data/columns';
 import { QuadratInputError, listNames } from '../model/errors';
-import { Cell, formatNumber, renderTable } from '../cli/text-table';
+import { Cell, formatNumber, renderTable } from './text-table';
 import { formatMetric } from '../study/format-metric';
 import { escapeHtml } from './escape-html';
 import { displayBundle } from './tslab-bridge';

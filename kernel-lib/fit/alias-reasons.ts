@@ -4,7 +4,7 @@
  */
 import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace } from '../numeric/dense';
 import { listNames } from '../model/errors';
-import type { DesignMatrices } from './design';
+import type { DesignMatrices } from '../data/design-matrices';
 
 /** Coefficients below this (on the unit-norm column scale) do not count as part of the combination. */
 const PART_TOLERANCE = 1e-6;

@@ -1,4 +1,4 @@
-import type { DesignMatrices } from './design';
+import type { ColumnRole, DesignMatrices } from '../data/design-matrices';
 
 /** Which fixed-effect columns can be estimated and which are linear combinations of earlier ones. */
 export interface AliasReport {
@@ -54,6 +54,23 @@ export function aliasingFromCrossProducts(xtx: Float64Array, p: number, stride: 
   return { estimable, aliased };
 }
 
+/**
+ * Order in which X columns claim estimability, from their roles: the intercept, then the columns
+ * of grouping factors entered as fixed, then everything else (each group in column order). So with
+ * site fixed, a site-level covariate is the column reported as not estimable, and the site effects stay.
+ */
+export function estimabilityOrder(roles: readonly ColumnRole[]): number[] {
+  const first: number[] = [];
+  const group: number[] = [];
+  const rest: number[] = [];
+  roles.forEach((role, j) => {
+    if (role.kind === 'intercept') first.push(j);
+    else if (role.fixedGroup !== undefined) group.push(j);
+    else rest.push(j);
+  });
+  return [...first, ...group, ...rest];
+}
+
 /** A copy of the design keeping only the given fixed-effect columns. */
 export function restrictColumns(design: DesignMatrices, keep: number[]): DesignMatrices {
   if (keep.length === design.p) return design;
@@ -61,5 +78,5 @@ export function restrictColumns(design: DesignMatrices, keep: number[]): DesignM
   const q = keep.length;
   const out = new Float64Array(n * q);
   for (let i = 0; i < n; i++) for (let j = 0; j < q; j++) out[i * q + j] = X[i * p + keep[j]];
-  return { ...design, p: q, X: out, fixedNames: keep.map((j) => design.fixedNames[j]) };
+  return { ...design, p: q, X: out, fixedNames: keep.map((j) => design.fixedNames[j]), roles: keep.map((j) => design.roles[j]) };
 }

@@ -2,7 +2,7 @@
  * Data a mixed model cannot describe, found before fitting so that the fit reports a reason
  * instead of variance components of 1e-8 or overflowing sums of squares.
  */
-import type { DesignMatrices } from './design';
+import type { DesignMatrices } from '../data/design-matrices';
 
 /** Beyond this magnitude squares and cross-products of a column overflow double precision (about 1.8e308). */
 export const OVERFLOW_MAGNITUDE = 1e150;

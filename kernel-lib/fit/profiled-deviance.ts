@@ -1,4 +1,4 @@
-import type { DesignMatrices, RandomTerm } from './design';
+import type { DesignMatrices, RandomTerm } from '../data/design-matrices';
 import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace, logDiagonalSum } from '../numeric/dense';
 import { Float64Arena } from '../numeric/arena';
 

@@ -3,7 +3,7 @@
  * in binary floating point, and the results scaled back; squares of such values would overflow
  * or underflow double precision.
  */
-import type { DesignMatrices } from './design';
+import type { DesignMatrices } from '../data/design-matrices';
 import type { FitResult } from './result';
 
 /** Rescale only beyond these magnitudes: ordinary data keep their exact arithmetic. */

@@ -380,5 +380,3 @@ function appendModelSEMetrics(out: MetricRow[], base: RowBase, p: ParameterAccum
 }
 
 export { formatMetric } from './format-metric';
-export { toWideTable } from './wide-table';
-export type { WideRow } from './wide-table';

@@ -1,9 +1,9 @@
 import { buildDesign } from '../data/build-design';
 import type { Columns } from '../data/columns';
+import type { DesignMatrices } from '../data/design-matrices';
 import { fitDesign, type IntervalMethod } from '../fit/fit-design';
-import { aliasPriority, checkInterval } from '../fit/fit-model';
+import { checkInterval } from '../fit/check-fit-options';
 import type { FitResult } from '../fit/result';
-import type { DesignMatrices } from '../fit/design';
 import { expandGrid, type Scenario } from '../design/grid';
 import { TargetProjector } from '../design/realised-truth';
 import { createWorkspace, simulateInto, simulationPlan, type SimulatedData } from '../design/simulate';
@@ -26,8 +26,6 @@ export class ReplicateRunner {
   readonly scenarios: Scenario[];
   private readonly workspaces = new Map<number, ReturnType<typeof createWorkspace>>();
   private readonly streams = new Map<number, ReplicateStreams>();
-  /** Alias priority per variant, reused while the design's column names stay the same. */
-  private readonly priorities = new Map<ResolvedVariant, { names: string[]; order: number[] }>();
 
   /** Interval method of each variant, checked once: an unknown method is refused before anything runs. */
   private readonly intervals = new Map<string, IntervalMethod>();
@@ -66,15 +64,6 @@ export class ReplicateRunner {
     return simulateInto(ws, streams.stream(replicate));
   }
 
-  private priorityFor(variant: ResolvedVariant, design: DesignMatrices): number[] {
-    const cached = this.priorities.get(variant);
-    const names = design.fixedNames;
-    if (cached && cached.names.length === names.length && cached.names.every((n, j) => n === names[j])) return cached.order;
-    const order = aliasPriority(design, variant.model);
-    this.priorities.set(variant, { names: names.slice(), order });
-    return order;
-  }
-
   private projectorFor(scenario: Scenario, variant: ResolvedVariant): TargetProjector {
     let projector = this.projectors.get(variant);
     if (!projector) {
@@ -96,7 +85,6 @@ export class ReplicateRunner {
           estimation: variant.model.estimation,
           level: variant.model.level,
           interval: this.intervals.get(variant.name)!,
-          aliasPriority: this.priorityFor(variant, design),
           modes: false,
           fitted: false,
         });

@@ -1,5 +1,5 @@
 import { Matrix, CholeskyDecomposition, EigenvalueDecomposition, inverse } from 'ml-matrix';
-import type { DesignMatrices } from '../../kernel-lib/fit/design';
+import type { DesignMatrices } from '../../kernel-lib/data/design-matrices';
 import type { FitResult } from '../../kernel-lib/fit/result';
 import { denseMarginalCovariance } from './dense-likelihood';
 

@@ -1,4 +1,4 @@
-import type { DesignMatrices, RandomTerm } from '../../kernel-lib/fit/design';
+import type { DesignMatrices, RandomTerm } from '../../kernel-lib/data/design-matrices';
 
 /** A tiny seeded generator for test data (Park and Miller 1988 minimal standard, with Box-Muller normals). */
 export function testRandom(seed: number) {
@@ -44,7 +44,9 @@ export function handDesign(X: number[][], names: string[], y: number[], terms: T
   const levelCounts: Record<string, number> = {};
   for (const t of random) levelCounts[t.factor] = t.levels.length;
   return {
-    n, p, X: Float64Array.from(X.flat()), fixedNames: names, y: Float64Array.from(y), random, levelCounts,
+    n, p, X: Float64Array.from(X.flat()), fixedNames: names,
+    roles: names.map((name, j) => (j === 0 && name === 'intercept' ? { kind: 'intercept' as const, sources: [] } : { kind: 'covariate' as const, sources: [name] })),
+    y: Float64Array.from(y), random, levelCounts,
     droppedRows: [], rowIds: Int32Array.from({ length: n }, (_, i) => i), warnings: [],
   };
 }

@@ -17,7 +17,7 @@
  * the GLM), as in the normal engine. The aggregation k of the negative binomial is estimated by
  * ML with the other parameters (Brent on log k for a GLM).
  */
-import type { DesignMatrices } from '../design';
+import type { DesignMatrices } from '../../data/design-matrices';
 import { aliasingFromCrossProducts, restrictColumns } from '../aliasing';
 import { brentMinimise } from '../../numeric/brent';
 import { nelderMeadBounded } from '../../numeric/nelder-mead';

@@ -11,7 +11,7 @@
  * Each iteration is a weighted penalised least-squares problem, solved by the normal engine's
  * block factorisation on √W-scaled copies of X, Z and the working response.
  */
-import type { DesignMatrices, RandomTerm } from '../design';
+import type { DesignMatrices, RandomTerm } from '../../data/design-matrices';
 import { ProfiledDeviance } from '../profiled-deviance';
 import type { GlmResponse } from './glm-response';
 

@@ -6,7 +6,7 @@
  * and scaled by the curvature there. With one node this is the Laplace approximation.
  * The per-group modes are kept between calls as warm starts; nothing is allocated per call.
  */
-import type { RandomTerm } from '../design';
+import type { RandomTerm } from '../../data/design-matrices';
 import { gaussHermite } from '../../numeric/gauss-hermite';
 import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace, inverseFromCholesky } from '../../numeric/dense';
 import type { GlmResponse } from './glm-response';

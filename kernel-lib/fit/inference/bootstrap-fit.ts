@@ -3,7 +3,7 @@
  * same intervals) as fitDesign with interval 'bootstrap' and the same seed, whatever the number of
  * workers.
  */
-import type { DesignMatrices } from '../design';
+import type { DesignMatrices } from '../../data/design-matrices';
 import type { FitResult } from '../result';
 import { QuadratInputError } from '../../model/errors';
 import { contextFromFit } from './context';

@@ -7,7 +7,7 @@
  * random effects u (engine term order, level by level), then the n residuals. So a resample is
  * the same whichever worker runs it and in whatever order, and any one can be rerun alone.
  */
-import type { DesignMatrices } from '../design';
+import type { DesignMatrices } from '../../data/design-matrices';
 import { ProfiledDeviance } from '../profiled-deviance';
 import { optimiseTheta } from '../optimise-theta';
 import { createStream } from '../../random/stream';

@@ -3,7 +3,7 @@
  * factored at the estimate, and the estimates. Built inside fitDesign, or afterwards from a design
  * and its fit (for tests of terms and contrasts).
  */
-import type { DesignMatrices } from '../design';
+import type { DesignMatrices } from '../../data/design-matrices';
 import type { FitResult } from '../result';
 import { ProfiledDeviance } from '../profiled-deviance';
 import { restrictColumns } from '../aliasing';

@@ -3,7 +3,7 @@
  * small-sample denominator df: Satterthwaite (multi-df by Fai and Cornelius 1996, J. Statist.
  * Comput. Simul. 54:363) or Kenward-Roger (Kenward and Roger 1997, §4, with their scaling).
  */
-import type { DesignMatrices } from '../design';
+import type { DesignMatrices } from '../../data/design-matrices';
 import type { FitResult } from '../result';
 import { QuadratInputError } from '../../model/errors';
 import { isLevelOf, splitLevelName } from '../../model/terms';

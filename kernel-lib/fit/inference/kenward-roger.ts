@@ -9,7 +9,7 @@
  * memory about six (q+p)² arrays, so the method refuses models with q + p > KR_MAX_DIMENSION random
  * plus fixed effects.
  */
-import type { DesignMatrices } from '../design';
+import type { DesignMatrices } from '../../data/design-matrices';
 import type { ProfiledDeviance } from '../profiled-deviance';
 import { varianceParameters, type VarianceParameters } from './variance-parameters';
 import { mixedModelSpace } from './mixed-model-space';

@@ -11,7 +11,7 @@
  * Cost O((q+p)³) with several random terms, O((q+p)²(k+p)) with one (block-diagonal S); memory a few
  * (q+p)² arrays; independent of n once C is built.
  */
-import type { DesignMatrices } from '../design';
+import type { DesignMatrices } from '../../data/design-matrices';
 import type { ProfiledDeviance } from '../profiled-deviance';
 import { choleskyInPlace, inverseFromCholesky } from '../../numeric/dense';
 import { inverseSpd } from './dense-ops';

@@ -1,7 +1,24 @@
 /**
  * The numeric form of a model applied to a table: what the engine fits.
  * Built once per data shape by data/buildDesign; in a simulation study only `y` changes.
+ * The engine reads matrices and column roles only; it never parses names or a model.
  */
+
+/**
+ * What one column of X is made of. `kind`: the intercept; a covariate (a numeric column, or a
+ * product of numeric columns); one level of a factor (a 0/1 dummy); or an interaction (a product
+ * with at least one dummy, e.g. a fixed grouping factor's slope column).
+ */
+export interface ColumnRole {
+  kind: 'intercept' | 'covariate' | 'factor-level' | 'interaction';
+  /** Table columns it is made from, outer first (empty for the intercept). */
+  sources: string[];
+  /**
+   * The grouping factor entered as fixed whose level this column indicates (alone or in a product),
+   * if any. These columns claim estimability right after the intercept (see fit/aliasing.ts).
+   */
+  fixedGroup?: string;
+}
 
 /** One random-effects term: a grouping factor with an intercept and optional slopes. */
 export interface RandomTerm {
@@ -31,6 +48,8 @@ export interface DesignMatrices {
   X: Float64Array;
   /** Coefficient names: "intercept", "x", "habitat=wet", "x:habitat=wet", "year=2021". */
   fixedNames: string[];
+  /** Role of each column of X, same order as `fixedNames`. */
+  roles: ColumnRole[];
   /** Response. */
   y: Float64Array;
   /** Random-effects terms, empty for ordinary least squares. */

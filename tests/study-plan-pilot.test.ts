@@ -3,7 +3,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseDesign } from '../kernel-lib/design/parse';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 import { planFromPilot } from '../kernel-lib/study/plan-pilot';
 import { ReplicateRunner } from '../kernel-lib/study/replicate-runner';
 import { inputError } from './helpers/input-error';

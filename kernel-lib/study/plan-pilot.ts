@@ -7,7 +7,7 @@
 import { join } from 'node:path';
 import { toColumns, type Columns } from '../data/columns';
 import { designFromSurvey, type DesignFromSurveyOptions } from '../design/from-survey';
-import { fitModel, type SurveyData } from '../fit/fit-model';
+import { fitModel, type SurveyData } from '../analyse/fit-model';
 import { QuadratInputError } from '../model/errors';
 import { parseModel } from '../model/parse';
 import type { ModelSpec } from '../model/types';

@@ -106,6 +106,19 @@ describe('a covariate correlated with the site effects', () => {
     expect(naive).toBeLessThan(limit);
   });
 
+  it('scores a split variant\'s group-mean slope against the covariate\'s own slope, with no warning', () => {
+    // y = β x + u = β (x − x̄_g) + β x̄_g + u: without confounding the between slope is β too (Bell and Jones 2015)
+    const design = parseDesign({
+      seed: 1, replicates: 1, factors: [{ name: 'site', levels: 5 }], perCell: 2,
+      covariates: [{ name: 'x', varies: 'observation', normal: { mean: 0, sd: 1 } }],
+      truth: { fixed: { intercept: 2, x: beta }, sd: { site: su, residual: se } },
+      variants: [{ name: 'split', model: variants.split }],
+    });
+    expect(design.variants[0].coefficients).toEqual(['intercept', 'x', 'x_mean_site']);
+    expect(design.variants[0].truth).toEqual({ intercept: 2, x: beta, x_mean_site: beta });
+    expect(design.warnings.filter((w) => w.includes('no truth'))).toEqual([]);
+  });
+
   it('leaves the random-intercept slope unbiased without the correlation', () => {
     const estimates = slopes(0, 200, 0);
     for (const name of ['random', 'split']) {

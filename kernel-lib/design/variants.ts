@@ -233,8 +233,10 @@ function attachTruth(
   const truth: Record<string, number> = {};
   const realised: string[] = [];
   const missing: string[] = [];
+  const splitSource = new Map(model.groups.flatMap((g) => (g.split ?? []).map((c): [string, string] => [groupMeanName(c, g.factor), c])));
   for (const coef of coefficients) {
-    const value = byCanonical.get(canonicalName(coef));
+    // a split covariate's group mean carries the covariate's own slope: β x = β (x − x̄_g) + β x̄_g
+    const value = byCanonical.get(canonicalName(splitSource.get(coef) ?? coef));
     truth[coef] = value ?? 0;
     if (isRealised(coef)) realised.push(coef);
     else if (value === undefined) missing.push(coef);

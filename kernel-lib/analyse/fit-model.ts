@@ -27,5 +27,8 @@ export function fitResolvedModel(data: SurveyData, model: ResolvedModel, options
     throw new QuadratInputError('model.interval: "kenward-roger" is defined for REML fits only, but model.estimation is "ML"; use estimation "REML" or interval "satterthwaite"', { field: 'model.interval' });
   }
   const design = buildDesign(toColumns(data as Columns), model);
-  return fitDesign(design, { estimation: model.estimation, level: model.level, interval, ...options });
+  return fitDesign(design, {
+    family: model.family, integration: model.integration, nodes: model.nodes,
+    estimation: model.estimation, level: model.level, interval, ...options,
+  });
 }

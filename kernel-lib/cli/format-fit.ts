@@ -1,5 +1,6 @@
 import type { FitResult } from '../fit/result';
 import { formatNumber, renderTable, type Cell } from '../display/text-table';
+import { responseBlocks, responseHeader, responseJson } from './format-response';
 
 /** The JSON document printed by `quadrat fit --json` (documented in DEVELOPERS.md). */
 export function fitToJson(fit: FitResult, level: number) {
@@ -27,6 +28,7 @@ export function fitToJson(fit: FitResult, level: number) {
     singular: fit.singular,
     failure: fit.failure,
     warnings: fit.warnings,
+    ...responseJson(fit, num),
   };
 }
 
@@ -72,6 +74,8 @@ export function formatFit(fit: FitResult, level: number, title = 'Fit', model?: 
   const out: string[] = [];
   out.push(title);
   out.push(`${fit.observations} observations used${fit.droppedRows ? `, ${fit.droppedRows} rows dropped for missing values` : ''} · ${fit.estimation === 'OLS' ? 'least squares (every grouping factor fixed)' : fit.estimation}`);
+  const header = responseHeader(fit);
+  if (header) out.push(header);
   if (fit.failure) out.push(`NOT FITTED: ${fit.failure}`);
 
   // Where the variation lies. Shares use the intercept variances and the residual: a slope's
@@ -91,7 +95,8 @@ export function formatFit(fit: FitResult, level: number, title = 'Fit', model?: 
   const rows: Cell[][] = [];
   for (const r of fit.random) {
     if (r.factor === 'residual') continue;
-    const share = r.term === 'intercept' ? r.variance / total : NaN;
+    // count families have no residual variance on the link scale, so no shares of a total
+    const share = r.term === 'intercept' && residual ? r.variance / total : NaN;
     rows.push([sourceName(r.factor, r.term), String(fit.levels[r.factor] ?? ''), r.sd, r.term === 'intercept' ? shareCell(share) : `  (varies with ${r.term})`, ...(sdIntervals ? [interval(r)] : [])]);
   }
   for (const g of model?.groups ?? []) {
@@ -101,7 +106,9 @@ export function formatFit(fit: FitResult, level: number, title = 'Fit', model?: 
     const share = residual.variance / total;
     rows.push(['within levels (residual)', '', residual.sd, shareCell(share), ...(sdIntervals ? [interval(residual)] : [])]);
   }
-  out.push('', `Where the variation lies (SD on the response scale; share of the total variance)`);
+  out.push('', fit.response
+    ? `Where the variation lies (SD on the ${fit.response.link} scale; no residual variance on that scale, so no shares)`
+    : `Where the variation lies (SD on the response scale; share of the total variance)`);
   out.push(renderTable(['source', 'levels', 'SD', 'share', ...(sdIntervals ? [`${pct}% interval of SD`] : [])], rows));
   for (const c of fit.correlations) {
     out.push(`  correlation of ${c.terms[0]} and ${c.terms[1]} effects between ${c.factor} levels: ${formatNumber(c.value, 3)}`);
@@ -116,6 +123,7 @@ export function formatFit(fit: FitResult, level: number, title = 'Fit', model?: 
       ? [r.term, 'not estimable (a combination of other columns)', '', '', ...(showDf ? [''] : [])]
       : [r.term, r.estimate, `${formatNumber(r.lower)} to ${formatNumber(r.upper)}`, r.se, ...(showDf ? [Number.isFinite(r.df) ? r.df.toFixed(1) : '∞'] : [])]),
   ));
+  out.push(...responseBlocks(fit, level));
 
   // How the fit went.
   out.push('', 'Fit diagnostics');

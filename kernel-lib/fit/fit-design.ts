@@ -19,6 +19,9 @@ export { INTERVAL_METHODS, type IntervalMethod } from './interval-methods';
 export interface FitOptions {
   /** Response family. Default 'gaussian'. */
   family?: FamilyName;
+  /** Non-normal families: 'laplace' (default) or 'quadrature' (one random intercept), and its nodes (9). */
+  integration?: 'laplace' | 'quadrature';
+  nodes?: number;
   /** Default 'REML'. Ignored when the model has no random terms (ordinary least squares). */
   estimation?: 'REML' | 'ML';
   /** Interval level. Default 0.95. */
@@ -64,6 +67,8 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
     start: options.start,
     modes: options.modes ?? true,
     fitted,
+    integration: options.integration,
+    nodes: options.nodes,
   });
   return summarise(design, estimate, { level: options.level ?? 0.95, interval: options.interval ?? 'wald', bootstrap: options.bootstrap, fitted });
 }

@@ -44,7 +44,25 @@ export interface ConditionalModeRow {
   sd: number;
 }
 
+/** What a count or detection fit adds (absent for normal responses). */
+export interface ResponseSummary {
+  family: 'poisson' | 'binomial' | 'negative-binomial';
+  link: 'log' | 'logit';
+  /** 'exact' for a GLM (no random terms). */
+  integration: 'exact' | 'laplace' | 'quadrature';
+  /** Quadrature nodes (1 for Laplace, 0 for a GLM). */
+  nodes: number;
+  /** Negative binomial aggregation k (variance μ + μ²/k). */
+  aggregation?: number;
+  /** Pearson χ² = Σ (y − μ)²/V(μ) at the fitted means, its residual df and their ratio (NaN where not meaningful: NB, 0/1 data). */
+  pearsonChi2: number;
+  residualDf: number;
+  overdispersion: number;
+}
+
 export interface FitResult {
+  /** Count and detection fits only: family, link, integration, aggregation, overdispersion. */
+  response?: ResponseSummary;
   estimation: 'REML' | 'ML' | 'OLS';
   observations: number;
   droppedRows: number;

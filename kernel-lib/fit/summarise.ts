@@ -95,9 +95,10 @@ export function summarise(design: DesignMatrices, est: Estimate, options: Summar
     for (let i = 0; i < n; i++) residuals[i] = design.y[i] - est.fitted[i];
   }
 
-  const parameters = p + est.theta.length + (est.dispersion === undefined ? 0 : 1);
+  const parameters = p + est.theta.length + (est.dispersion === undefined ? 0 : 1) + (est.extraParameters ?? 0);
   const { logLik } = est;
   return {
+    ...(est.response ? { response: est.response } : {}),
     estimation: est.estimation, observations: n, droppedRows: design.droppedRows.length, levels: { ...design.levelCounts }, fixed, fixedCov,
     random, correlations, residualSd: Math.sqrt(sigma2), logLik,
     aic: -2 * logLik + 2 * parameters, bic: -2 * logLik + Math.log(n) * parameters, parameters,

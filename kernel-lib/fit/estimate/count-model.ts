@@ -62,6 +62,8 @@ export interface CountEstimate {
   nodes: number;
   estimable: number[];
   aliased: number[];
+  /** XᵀX of the full design (p × p), for explaining aliased columns. */
+  xtx: Float64Array;
   /** Estimates of the estimable columns, in `estimable` order. */
   beta: Float64Array;
   /** Their covariance (estimable × estimable, row-major). */
@@ -128,7 +130,7 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
   }
   const link = family === 'binomial' ? 'logit' : 'log';
   const base = {
-    family, link: link as 'log' | 'logit', estimable: alias.estimable, aliased: alias.aliased,
+    family, link: link as 'log' | 'logit', estimable: alias.estimable, aliased: alias.aliased, xtx,
   };
   if (design.random.length === 0) {
     const eta = new Float64Array(n);

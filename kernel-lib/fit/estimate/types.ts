@@ -10,7 +10,7 @@
  * entry in `./index.ts`; Wald z intervals then come from `beta`/`betaCov` with no further work.
  */
 import type { DesignMatrices, RandomTerm } from '../../data/design-matrices';
-import type { ConditionalModeRow, FitResult } from '../result';
+import type { ConditionalModeRow, FitResult, ResponseSummary } from '../result';
 import type { BootstrapSettings, IntervalOutcome, SmallSampleMethod } from '../inference/intervals';
 
 export interface EstimateOptions {
@@ -24,6 +24,9 @@ export interface EstimateOptions {
   modes: boolean;
   /** Compute fitted values (response scale). */
   fitted: boolean;
+  /** Non-normal families: how the random effects are integrated out, and quadrature nodes. */
+  integration?: 'laplace' | 'quadrature';
+  nodes?: number;
 }
 
 /** Estimated covariance of one random term's k effects, on the scale the family reports. */
@@ -70,6 +73,10 @@ export interface Estimate {
   modes: ConditionalModeRow[];
   /** Fitted values on the response scale, one per observation (empty unless asked for). */
   fitted: Float64Array;
+  /** Count and detection families: what the result reports beyond the shared fields. */
+  response?: ResponseSummary;
+  /** Parameters beyond β, θ and the dispersion counted in AIC/BIC (the NB aggregation k). */
+  extraParameters?: number;
   /** Interval methods beyond Wald and residual-t, when the step supports them (normal responses). */
   smallSample?: (method: SmallSampleMethod, level: number, bootstrap?: BootstrapSettings) => IntervalOutcome;
 }

@@ -1,0 +1,89 @@
+/**
+ * Estimate step of the count and detection families (Poisson, binomial, negative binomial):
+ * ./count-model.ts does the numbers; this turns them into the shared Estimate, adds the
+ * overdispersion check and the family's own summary (link, integration, aggregation k).
+ */
+import type { DesignMatrices } from '../../data/design-matrices';
+import type { ConditionalModeRow, ResponseSummary } from '../result';
+import { estimateCountModel, COUNT_BOUNDARY_TOLERANCE } from './count-model';
+import { aliasReasons } from '../alias-reasons';
+import type { CountFamily } from './glm-response';
+import type { Estimate, EstimateStep, TermCovariance } from './types';
+
+/** Pearson χ²/df above this is reported as overdispersion (a rule of thumb: common practice, no source). */
+export const OVERDISPERSION_WARNING = 1.5;
+
+export function countEstimateStep(family: CountFamily): EstimateStep {
+  return (design: DesignMatrices, options): Estimate => {
+    const est = estimateCountModel(design, {
+      family, trials: design.trials, offset: design.offset, integration: options.integration, nodes: options.nodes,
+      aliasPriority: options.priority,
+    });
+    const warnings: string[] = [];
+    if (!est.converged) warnings.push(`did not converge: ${est.reason || 'the optimiser stopped early'}`);
+    warnings.push(...est.warnings);
+    const failure = Number.isFinite(est.logLik) ? '' : est.reason || 'the likelihood could not be evaluated';
+    // overdispersion: Poisson, and binomial with more than one trial (0/1 data carry no information on it)
+    const applies = family === 'poisson' || (family === 'binomial' && design.trials !== undefined && design.trials.some((m) => m > 1));
+    const ratio = applies && est.residualDf > 0 ? est.pearsonChi2 / est.residualDf : NaN;
+    if (ratio > OVERDISPERSION_WARNING) {
+      warnings.push(
+        `overdispersion: Pearson χ²/df = ${ratio.toFixed(2)} (above ${OVERDISPERSION_WARNING}); the ${family} variance is too small for these data, so SEs are too small. ` +
+          `Consider "family": "negative-binomial"${family === 'binomial' ? ' (counts) or' : ' or'} an observation-level random effect (a grouping factor with one level per row, as "random").`,
+      );
+    }
+    const response: ResponseSummary = {
+      family, link: est.link, integration: est.integration, nodes: est.nodes,
+      aggregation: family === 'negative-binomial' ? est.aggregation : undefined,
+      pearsonChi2: est.pearsonChi2, residualDf: est.residualDf, overdispersion: ratio,
+    };
+    return {
+      estimation: 'ML', estimable: est.estimable, aliased: est.aliased, failure,
+      aliasReasons: aliasReasons(design, est.xtx, design.p, est.estimable, est.aliased), warnings, converged: est.converged,
+      evaluations: est.evaluations, theta: est.theta, deviance: -2 * est.logLik, logLik: est.logLik,
+      beta: est.beta, betaCov: est.cov, residualDf: design.n - est.estimable.length, exactT: false, dispersion: undefined,
+      terms: termCovariances(design, est), modes: options.modes ? modeRows(design, est) : [],
+      fitted: options.fitted ? est.mu : new Float64Array(0), response,
+      extraParameters: family === 'negative-binomial' ? 1 : 0,
+    };
+  };
+}
+
+/** Σ = T Tᵀ per random term on the link scale (no residual variance in these families). */
+function termCovariances(design: DesignMatrices, est: ReturnType<typeof estimateCountModel>): TermCovariance[] {
+  const layout = est.layout;
+  if (!layout) return [];
+  layout.setTheta(est.theta);
+  return design.random.map((term) => {
+    const s = layout.termIndex.get(term)!;
+    const k = layout.terms[s].k;
+    const T = layout.templates[s];
+    const cov = new Float64Array(k * k);
+    let boundary = false;
+    for (let i = 0; i < k; i++) {
+      for (let j = 0; j < k; j++) {
+        let sum = 0;
+        for (let c = 0; c <= Math.min(i, j); c++) sum += T[i * k + c] * T[j * k + c];
+        cov[i * k + j] = sum;
+      }
+      if (Math.abs(T[i * k + i]) < COUNT_BOUNDARY_TOLERANCE) boundary = true;
+    }
+    return { term, cov, boundary };
+  });
+}
+
+function modeRows(design: DesignMatrices, est: ReturnType<typeof estimateCountModel>): ConditionalModeRow[] {
+  const layout = est.layout;
+  if (!layout) return [];
+  const rows: ConditionalModeRow[] = [];
+  for (const term of design.random) {
+    const t = layout.terms[layout.termIndex.get(term)!];
+    for (let l = 0; l < t.m; l++) {
+      for (let i = 0; i < t.k; i++) {
+        const at = t.start + l * t.k + i;
+        rows.push({ factor: term.factor, level: term.levels[l], term: term.terms[i], mode: est.modes[at], sd: est.modeSds[at] });
+      }
+    }
+  }
+  return rows;
+}

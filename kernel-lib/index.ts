@@ -66,3 +66,22 @@ export * from './display/index';
 export { readStudyFolder, studyReportHtml, studyChartSections } from './display/study-report';
 export type { StudyResults } from './display/study-report';
 export * from './notebook/index';
+
+// Types that the functions above take or return (so the API reference can link them)
+export type { CsvOptions } from './data/csv';
+export type { DerivedDesign, DesignFromSurveyOptions } from './design/from-survey';
+export type { SimulatedData } from './design/simulate';
+export type { CovariateSpec, FactorSpec, GridAxis, GridValue, ResolvedCovariate, ResolvedFactor, ResolvedTruth, ResolvedVariant, TruthSpec, UnequalSpec, VariantSpec } from './design/types';
+export type { BootstrapSummary } from './fit/inference/bootstrap';
+export type { TestMethod } from './fit/inference/contrast-test';
+export type { BootstrapSettings } from './fit/inference/intervals';
+export type { QuadratInputErrorDetails } from './model/errors';
+export type { CategoricalTerm, Integration, MissingPolicy, ResponseFamilyName } from './model/types';
+export type { KeyPart } from './random/stream';
+export type { Shard } from './study/batch-plan';
+export type { MetricName, SummariseOptions } from './study/metrics';
+export type { Probe } from './study/plan-search';
+export type { VariantCell } from './study/reading';
+export type { ReplicateKind, ReplicateStatus } from './study/replicate-row';
+export type { StudyManifest } from './study/study-folder';
+export type { WideRow } from './study/wide-table';

@@ -3,7 +3,7 @@ import * as aq from 'arquero';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { readCsvFile } from '../kernel-lib/data/csv';
-import { fitModel } from '../kernel-lib/fit/fit-model';
+import { fitModel } from '../kernel-lib/analyse/fit-model';
 import { fixedEffectsTable, groupEffectsTable, groupSdTable, metricsTable, surveyTable } from '../kernel-lib/notebook/tables';
 import type { MetricRow } from '../kernel-lib/study/metrics';
 

@@ -5,7 +5,7 @@
 import * as aq from 'arquero';
 import type { ColumnTable } from 'arquero';
 import { toColumns, type Columns } from '../data/columns';
-import type { SurveyData } from '../fit/fit-model';
+import type { SurveyData } from '../analyse/fit-model';
 import type { FitResult } from '../fit/result';
 import { normalQuantile } from '../numeric/distributions';
 import type { MetricRow } from '../study/metrics';

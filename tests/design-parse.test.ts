@@ -282,3 +282,20 @@ describe('semidefiniteCholesky', () => {
     expect(semidefiniteCholesky(Float64Array.from([1, 2, 2, 1]), 2)).toBeNull();
   });
 });
+
+describe('survey sizes are checked before anything is allocated', () => {
+  const small = {
+    seed: 1, replicates: 10, factors: [{ name: 'site', levels: 6 }], perCell: 2,
+    truth: { fixed: { intercept: 1 }, sd: { site: 1, residual: 1 } },
+    variants: [{ name: 'v', model: { response: 'y', groups: [{ factor: 'site', as: 'random' }] } }],
+  };
+  it('a factor of 1e9 levels and a survey of 2e8 rows are refused with the memory they would need', () => {
+    // Project limits (design/size-limits.ts); 1e9 labels × 64 bytes = 64 GB (arithmetic).
+    const e = inputError(() => parseDesign({ ...small, factors: [{ name: 'site', levels: 1e9 }] }));
+    expect(e.message).toBe('design.factors[0].levels: factor "site" would have 1,000,000,000 levels, beyond the limit of 1,000,000; its labels alone would need about 64 GB in memory');
+    expect(e.field).toBe('design.factors[0].levels');
+    const rows = inputError(() => parseDesign({ ...small, factors: [{ name: 'site', levels: 1e5 }, { name: 'year', levels: 1000 }] }));
+    expect(rows.message).toMatch(/^design\.factors: a simulated data set would have 200,000,000 rows .* beyond the limit of 10,000,000; it would need about \d+ GB in memory$/);
+    expect(inputError(() => parseDesign({ ...small, perCell: 1e9 })).field).toBe('design.factors');
+  });
+});

@@ -1,5 +1,6 @@
 /** Survey factors: parsing, nesting and level labels. */
 import { listNames } from '../model/errors';
+import { checkFactorLevels } from './size-limits';
 import { expectArray, expectInteger, expectName, expectObject, fail, rejectUnknownKeys } from './checks';
 import type { ResolvedFactor } from './types';
 
@@ -62,6 +63,7 @@ export function parseFactors(value: unknown, path: string): ResolvedFactor[] {
     total.set(name, t);
     return t;
   };
+  specs.forEach((f, i) => checkFactorLevels(f.name, totalOf(f.name), `${path}[${i}].levels`));
   return specs.map((f) => {
     const totalLevels = totalOf(f.name);
     const resolved: ResolvedFactor = { name: f.name, levels: f.levels, totalLevels, labels: levelLabels(f.name, totalLevels) };

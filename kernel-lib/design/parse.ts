@@ -15,6 +15,7 @@ import { parseFactors } from './factors';
 import { RESPONSE_FAMILIES, responseFamily } from '../family/index';
 import { resolveGridPath } from './grid-path';
 import { buildLayout } from './layout';
+import { checkSurveyRows } from './size-limits';
 import { parseTruth } from './truth';
 import type { GridAxis, GridValue, ResolvedFactor, SurveyDesign, SurveyDesignSpec } from './types';
 import { parseVariants } from './variants';
@@ -60,6 +61,7 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
     if (c.name === response || c.name === INTERCEPT) fail(`${path}.covariates[${i}].name: "${c.name}" is reserved or the response`, `${path}.covariates[${i}].name`);
   });
 
+  checkSurveyRows(factors.map((f) => f.levels), perCell, `${path}.factors`);
   const unequal = parseUnequal(obj.unequal, `${path}.unequal`, factors, perCell, seed);
   const layout = buildLayout(factors, perCell, unequal);
   const catalog = columnCatalog(response, factors, covariates);

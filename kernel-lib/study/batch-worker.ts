@@ -6,7 +6,8 @@ import { parentPort, workerData } from 'node:worker_threads';
 import { parseDesign } from '../design/parse';
 import { ReplicateRunner } from './replicate-runner';
 import { replicateRowsToCsv } from './replicate-csv';
-import { writeBatch } from './study-folder';
+import { writeBatch, type BatchStamp } from './batch-files';
+import { lockProblem } from './folder-lock';
 
 export interface BatchTask {
   ordinal: number;
@@ -20,12 +21,15 @@ export type BatchReply = { ordinal: number; replicates: number } | { ordinal: nu
 
 if (parentPort) {
   const port = parentPort;
-  const { design, folder } = workerData as { design: unknown; folder: string };
+  const { design, folder, stamp } = workerData as { design: unknown; folder: string; stamp: BatchStamp };
   const runner = new ReplicateRunner(parseDesign(design));
   port.on('message', (task: BatchTask) => {
     try {
       const rows = runner.runBatch(task.scenario, task.from, task.to);
-      writeBatch(folder, task, replicateRowsToCsv(rows));
+      // the folder may have been deleted and reused since the run began: never write into another run's folder
+      const lost = lockProblem(folder, stamp.run);
+      if (lost) throw new Error(lost);
+      writeBatch(folder, task, replicateRowsToCsv(rows), stamp);
       port.postMessage({ ordinal: task.ordinal, replicates: task.to - task.from } satisfies BatchReply);
     } catch (e) {
       port.postMessage({ ordinal: task.ordinal, error: (e as Error).message } satisfies BatchReply);

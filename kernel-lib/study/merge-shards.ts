@@ -1,10 +1,12 @@
-import { copyFileSync, existsSync } from 'node:fs';
+import { copyFileSync, existsSync, renameSync } from 'node:fs';
 import { join } from 'node:path';
 import { QuadratInputError } from '../model/errors';
 import { batchFileName, planBatches } from './batch-plan';
 import type { MetricRow } from './metrics';
 import { finalise } from './run-study';
 import { finishedBatches, openStudyFolder, readManifest } from './study-folder';
+import { checkBatches } from './batch-files';
+import { checkWritableFolder } from './folder-lock';
 
 /**
  * Combine shard folders of one study into a single folder whose replicates.csv and metrics are
@@ -19,12 +21,26 @@ export function mergeShards(folders: string[], out: string): { batches: number; 
       throw new QuadratInputError(`study merge: "${folders[i]}" belongs to a different study than "${folders[0]}" (design or settings differ)`, { field: 'folders' });
     }
   });
+  checkWritableFolder(out);
   openStudyFolder(out, first);
   const all = planBatches(first.scenarios.length, first.replicates, first.batchSize);
   for (const folder of folders) {
-    for (const name of finishedBatches(folder)) {
+    // only batches that pass their check (rows, checksum, this study) are copied, with their check
+    const { good, bad } = checkBatches(folder, first.fingerprint);
+    if (bad.length) {
+      throw new QuadratInputError(
+        `study merge: batch ${bad[0].name} in "${folder}" failed its check (${bad[0].problem})${bad.length > 1 ? ` and ${bad.length - 1} more` : ''}; run that shard again to recompute it, then merge`,
+        { field: 'folders' },
+      );
+    }
+    for (const name of good) {
       const target = join(out, 'batches', name);
-      if (!existsSync(target)) copyFileSync(join(folder, 'batches', name), target);
+      if (!existsSync(target)) {
+        copyFileSync(join(folder, 'batches', `${name}.check`), `${target}.check.tmp-${process.pid}`);
+        copyFileSync(join(folder, 'batches', name), `${target}.tmp-${process.pid}`);
+        renameSync(`${target}.tmp-${process.pid}`, target);
+        renameSync(`${target}.check.tmp-${process.pid}`, `${target}.check`);
+      }
     }
   }
   const have = finishedBatches(out);
@@ -35,6 +51,6 @@ export function mergeShards(folders: string[], out: string): { batches: number; 
       { field: 'folders' },
     );
   }
-  const { metrics } = finalise(out, all)!;
+  const { metrics } = finalise(out, all, first.fingerprint)!;
   return { batches: all.length, metrics };
 }

@@ -1,4 +1,5 @@
-import { existsSync, writeFileSync } from 'node:fs';
+import { randomUUID } from 'node:crypto';
+import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { parseDesign } from '../design/parse';
@@ -13,9 +14,9 @@ import type { ReplicateRow } from './replicate-row';
 import { ReplicateRunner } from './replicate-runner';
 import { variantLevels } from './variant-levels';
 import { checkStudyOptions } from './check-study-options';
-import {
-  assembleReplicates, finishedBatches, fingerprintOf, openStudyFolder, readManifest, writeAtomic, writeBatch, type StudyManifest,
-} from './study-folder';
+import { assembleReplicates, fingerprintOf, openStudyFolder, readManifest, type StudyManifest } from './study-folder';
+import { checkBatches, removeBatch, removeStaleTemporaries, writeAtomic, writeBatch, type BatchStamp } from './batch-files';
+import { acquireFolderLock, checkWritableFolder, lockProblem, releaseFolderLock } from './folder-lock';
 
 export interface StudyProgress {
   /** Replicates finished in this run (batches already on disk not counted). */
@@ -131,6 +132,7 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
   const checked = checkStudyOptions(options as unknown as Record<string, unknown>);
   const { design, source } = resolveStudyDesign(input, options.replicates);
   const batchSize = options.batchSize ?? DEFAULT_BATCH_SIZE;
+  checkWritableFolder(options.out);
   const runner = new ReplicateRunner(design);
   const scenarios = runner.scenarios.map((s, index) => ({ index, key: s.key, values: s.values }));
   const warnings = [...design.warnings, ...checked.warnings, ...preflight(runner)];
@@ -139,9 +141,31 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
     replicates: design.replicates, batchSize, scenarios,
   };
   openStudyFolder(options.out, manifest);
-  const all = planBatches(scenarios.length, design.replicates, batchSize);
+  // the folder is this run's until it ends: a second run is refused, and every batch carries the stamp
+  const stamp: BatchStamp = { study: manifest.fingerprint, run: randomUUID() };
+  const lockNote = acquireFolderLock(options.out, stamp.run);
+  if (lockNote) warnings.push(lockNote);
+  try {
+    return await runLocked(runner, source, options, checked.workers, manifest, stamp, warnings, started);
+  } finally {
+    releaseFolderLock(options.out, stamp.run);
+  }
+}
+
+async function runLocked(
+  runner: ReplicateRunner, source: unknown, options: RunStudyOptions, maxWorkers: number, manifest: StudyManifest,
+  stamp: BatchStamp, warnings: string[], started: number,
+): Promise<RunStudyResult> {
+  const { scenarios } = manifest;
+  const stale = removeStaleTemporaries(options.out);
+  if (stale) warnings.push(`removed ${stale} temporary file(s) left by an interrupted run`);
+  const all = planBatches(scenarios.length, manifest.replicates, manifest.batchSize);
   const mine = options.shard ? batchesOfShard(all, options.shard) : all;
-  const onDisk = finishedBatches(options.out);
+  const { good: onDisk, bad } = checkBatches(options.out, stamp.study);
+  for (const b of bad) {
+    removeBatch(options.out, b.name);
+    warnings.push(`batch ${b.name} failed its check (${b.problem}): recomputing it`);
+  }
   const todo = mine.filter((b) => !onDisk.has(batchFileName(b)));
   const resumed = mine.filter((b) => onDisk.has(batchFileName(b))).reduce((n, b) => n + b.to - b.from, 0);
   const total = todo.reduce((n, b) => n + b.to - b.from, 0);
@@ -153,11 +177,15 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
     options.onProgress({ done, total, resumed, elapsedSeconds: elapsed, replicatesPerSecond: rate, secondsLeft: rate > 0 ? (total - done) / rate : NaN });
   };
   report();
-  const workers = Math.max(1, Math.min(checked.workers, todo.length || 1));
+  const workers = Math.max(1, Math.min(maxWorkers, todo.length || 1));
   let ran = 0;
   const runStarted = Date.now();
   const finish = (b: Batch, csv: string | null) => {
-    if (csv !== null) writeBatch(options.out, b, csv);
+    if (csv !== null) {
+      const lost = lockProblem(options.out, stamp.run);
+      if (lost) throw new Error(lost);
+      writeBatch(options.out, b, csv, stamp);
+    }
     done += b.to - b.from;
     ran++;
     report();
@@ -170,13 +198,13 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
       await new Promise((resolve) => setImmediate(resolve));
     }
   } else {
-    await runPool(todo, workers, source, options.out, options.signal, (b) => finish(b, null));
+    await runPool(todo, workers, source, options.out, stamp, options.signal, (b) => finish(b, null));
   }
   const interrupted = Boolean(options.signal?.aborted) && ran < todo.length;
   const complete = !interrupted && ran === todo.length;
   const runSeconds = (Date.now() - runStarted) / 1000;
   const finaliseStarted = Date.now();
-  const summary = complete && !options.shard ? finalise(options.out, all) : null;
+  const summary = complete && !options.shard ? finalise(options.out, all, stamp.study) : null;
   if (summary) warnings.push(...failureWarnings(summary.metrics));
   return {
     folder: options.out, scenarios, batchesRun: ran, batchesSkipped: mine.length - todo.length, complete, interrupted,
@@ -190,7 +218,7 @@ export async function runStudy(input: unknown, options: RunStudyOptions): Promis
  * for the main thread; each worker writes its finished batches to the folder itself.
  */
 function runPool(
-  todo: Batch[], count: number, source: unknown, folder: string, signal: AbortSignal | undefined, finished: (b: Batch) => void,
+  todo: Batch[], count: number, source: unknown, folder: string, stamp: BatchStamp, signal: AbortSignal | undefined, finished: (b: Batch) => void,
 ): Promise<void> {
   const IN_FLIGHT = 2;
   return new Promise((resolve, reject) => {
@@ -216,7 +244,7 @@ function runPool(
     for (let i = 0; i < count; i++) {
       // a larger young generation: fits allocate many short-lived objects, and the default nursery of a
       // worker thread makes the scavenger run far more often than in the main thread
-      const w = new Worker(path, { workerData: { design: source, folder }, resourceLimits: { maxYoungGenerationSizeMb: 64 } });
+      const w = new Worker(path, { workerData: { design: source, folder, stamp }, resourceLimits: { maxYoungGenerationSizeMb: 64 } });
       pool.push(w);
       w.on('message', (reply: BatchReply) => {
         active--;
@@ -234,14 +262,14 @@ function runPool(
   });
 }
 
-/** Write replicates.csv and the metrics once every batch is on disk. */
-export function finalise(folder: string, batches: Batch[]): { metrics: MetricRow[]; rows: ReplicateRow[] } | null {
-  const text = assembleReplicates(folder, batches);
+/** Write replicates.csv and the metrics once every batch is on disk (each checked; with `study`, also who wrote it). */
+export function finalise(folder: string, batches: Batch[], study = ''): { metrics: MetricRow[]; rows: ReplicateRow[] } | null {
+  const text = assembleReplicates(folder, batches, study);
   if (text === null) return null;
   const rows = parseReplicateCsv(text, 'replicates.csv');
   const metrics = summarise(rows, { levels: variantLevels(parseDesign(readManifest(folder).design)) });
   writeAtomic(join(folder, 'metrics.json'), JSON.stringify(metrics, null, 1));
-  writeFileSync(join(folder, 'metrics.csv'), metricsToCsv(metrics));
+  writeAtomic(join(folder, 'metrics.csv'), metricsToCsv(metrics));
   return { metrics, rows };
 }
 

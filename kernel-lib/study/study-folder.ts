@@ -1,15 +1,20 @@
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { QuadratInputError } from '../model/errors';
 import { batchFileName, type Batch } from './batch-plan';
 import { REPLICATE_HEADER } from './replicate-csv';
+import { readCheckedBatch, writeAtomic } from './batch-files';
+
+export { finishedBatches, writeAtomic, writeBatch } from './batch-files';
 
 /**
  * Layout of a study's output folder:
  *   study.json        the design as given, the run settings and a fingerprint of both
  *   scenarios.json    index, key and grid values of every scenario
- *   batches/          one CSV per finished batch (written atomically: a batch is there whole or not at all)
+ *   study.lock        the process and run writing the folder (./folder-lock), while it runs
+ *   batches/          one CSV per finished batch and its .check (rows, checksum, study and run; ./batch-files),
+ *                     each written as temporary file, flush, rename: a batch is there whole or not at all
  *   replicates.csv    all batches in study order (written when every batch is present)
  *   metrics.csv/.json the summary with Monte Carlo SEs
  */
@@ -43,13 +48,6 @@ export const PROJECT_VERSION: string = (() => {
   }
 })();
 
-/** Write text atomically: to a temporary name in the same folder, then rename over the target. */
-export function writeAtomic(path: string, text: string): void {
-  const tmp = `${path}.tmp-${process.pid}`;
-  writeFileSync(tmp, text);
-  renameSync(tmp, path);
-}
-
 /**
  * Create the folder, or check that an existing one belongs to the same study (same design and
  * settings), so that resuming never mixes results of two different studies.
@@ -77,26 +75,22 @@ export function readManifest(folder: string): StudyManifest {
   return JSON.parse(readFileSync(path, 'utf8')) as StudyManifest;
 }
 
-/** File names of finished batches. */
-export function finishedBatches(folder: string): Set<string> {
-  const dir = join(folder, 'batches');
-  if (!existsSync(dir)) return new Set();
-  return new Set(readdirSync(dir).filter((f) => f.endsWith('.csv')));
-}
-
-export function writeBatch(folder: string, batch: Pick<Batch, 'scenario' | 'batch'>, csv: string): void {
-  writeAtomic(join(folder, 'batches', batchFileName(batch)), csv);
-}
-
 /**
  * Concatenate all batches in study order into replicates.csv; returns its text (so the caller need
- * not read it back), or null when some batches are missing.
+ * not read it back), or null when some batches are missing. Every batch is checked (row count,
+ * checksum, and with `study` the study that wrote it); one that fails stops the assembly naming it.
  */
-export function assembleReplicates(folder: string, batches: readonly Batch[]): string | null {
-  const done = finishedBatches(folder);
-  if (!batches.every((b) => done.has(batchFileName(b)))) return null;
+export function assembleReplicates(folder: string, batches: readonly Batch[], study = ''): string | null {
   const parts = [`${REPLICATE_HEADER}\n`];
-  for (const b of batches) parts.push(readFileSync(join(folder, 'batches', batchFileName(b)), 'utf8'));
+  for (const b of batches) {
+    const name = batchFileName(b);
+    if (!existsSync(join(folder, 'batches', name))) return null;
+    const r = readCheckedBatch(folder, name, study);
+    if ('problem' in r) {
+      throw new Error(`batch ${name} in "${folder}" failed its check: ${r.problem}; run the study again to recompute it`);
+    }
+    parts.push(r.text);
+  }
   const text = parts.join('');
   writeAtomic(join(folder, 'replicates.csv'), text);
   return text;

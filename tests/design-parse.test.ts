@@ -182,7 +182,7 @@ describe('parseDesign: messages name the field', () => {
   });
 
   it('refuses an unknown family', () => {
-    expect(inputError(() => parseDesign({ ...example(), family: 'poisson' })).message).toMatch(/^design\.family: expected one of gaussian/);
+    expect(inputError(() => parseDesign({ ...example(), family: 'gamma' })).message).toMatch(/^design\.family: expected one of gaussian/);
   });
 
   it('refuses category probabilities that do not sum to 1', () => {

@@ -20,7 +20,7 @@ import { parseTruth } from './truth';
 import type { GridAxis, GridValue, ResolvedFactor, SurveyDesign, SurveyDesignSpec } from './types';
 import { parseVariants } from './variants';
 
-const DESIGN_KEYS = ['seed', 'replicates', 'factors', 'perCell', 'missing', 'response', 'family', 'covariates', 'unequal', 'truth', 'variants', 'grid', 'plan'];
+const DESIGN_KEYS = ['seed', 'replicates', 'factors', 'perCell', 'missing', 'response', 'family', 'trials', 'covariates', 'unequal', 'truth', 'variants', 'grid', 'plan'];
 
 export const DESIGN_DEFAULTS = { perCell: 1, missing: 0, response: 'y', family: 'gaussian' };
 
@@ -56,6 +56,12 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
     fail(`${path}.family: expected one of ${listNames(Object.keys(RESPONSE_FAMILIES))}, got ${describeValue(familyName)}`, `${path}.family`);
   }
 
+  let trials = 1;
+  if (obj.trials !== undefined) {
+    if (family.name !== 'binomial') fail(`${path}.trials: only used with "family": "binomial"`, `${path}.trials`);
+    trials = expectInteger(obj.trials, `${path}.trials`, 1);
+  }
+
   const covariates = parseCovariates(obj.covariates, `${path}.covariates`, factors);
   covariates.forEach((c, i) => {
     if (c.name === response || c.name === INTERCEPT) fail(`${path}.covariates[${i}].name: "${c.name}" is reserved or the response`, `${path}.covariates[${i}].name`);
@@ -76,6 +82,7 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
   });
   if (obj.variants === undefined) fail(`${path}.variants: expected an array of { name, model } (required)`, `${path}.variants`);
   const variants = parseVariants(obj.variants, `${path}.variants`, { catalog, factors, layout, truth }, warnings);
+  checkVariantFamilies(variants, family.name, trials, `${path}.variants`, warnings);
   // The copy kept for the grid has the defaults written out, so a grid can vary them too.
   const source = JSON.parse(JSON.stringify(obj)) as Record<string, unknown>;
   for (const [key, value] of Object.entries(DESIGN_DEFAULTS)) if (source[key] === undefined) source[key] = value;
@@ -86,6 +93,7 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
     replicates,
     response,
     family: family.name,
+    trials,
     factors,
     perCell,
     missing,
@@ -162,5 +170,27 @@ function parseGrid(value: unknown, path: string, source: Record<string, unknown>
       return v;
     });
     return { path: key, values };
+  });
+}
+
+const LINKS: Record<string, string> = { gaussian: 'identity', poisson: 'log', 'negative-binomial': 'log', binomial: 'logit' };
+
+/**
+ * A variant may fit any family to the simulated data (e.g. counts analysed as normal). When its
+ * link differs from the simulated family's, its coefficients are on another scale than the truth:
+ * say so. A binomial variant must use the design's trials.
+ */
+function checkVariantFamilies(variants: SurveyDesign['variants'], family: string, trials: number, path: string, warnings: string[]): void {
+  variants.forEach((v, i) => {
+    const m = v.model;
+    if (m.family === 'binomial' && family === 'binomial' && m.trials !== trials) {
+      fail(`${path}[${i}].model.trials: the design draws ${trials} trial(s) per observation; give "trials": ${trials}`, `${path}[${i}].model.trials`);
+    }
+    if (LINKS[m.family] !== LINKS[family]) {
+      warnings.push(
+        `${path}[${i}] ("${v.name}") fits a ${m.family} model (${LINKS[m.family]} link) to ${family} data (${LINKS[family]} link): its coefficients are on another scale than the truth, ` +
+          'so bias, RMSE and coverage compare unlike quantities and are not meaningful; power (a true effect) and type I error (a true zero, zero on every scale) are',
+      );
+    }
   });
 }

@@ -95,6 +95,8 @@ export interface SimulationPlan {
   random: CompiledRandom[];
   family: ResponseFamily;
   familyParams: FamilyParams;
+  /** Trials per observation (binomial; 1 otherwise). */
+  trials: number;
 }
 
 export function compilePlan(design: SurveyDesign): SimulationPlan {
@@ -201,5 +203,6 @@ export function compilePlan(design: SurveyDesign): SimulationPlan {
     random,
     family: RESPONSE_FAMILIES[design.family as FamilyName]!,
     familyParams: design.truth.familyParams,
+    trials: design.trials,
   };
 }

@@ -348,8 +348,8 @@ function fillRows(ws: SimulationWorkspace, stream: Stream, n: number, out: Outpu
 
   const family = plan.family;
   const params = plan.familyParams;
-  // one trial per row until a family needs trials (binomial)
-  for (let i = 0; i < n; i++) y[i] = family.draw(family.linkInverse(eta[i]), stream, params, 1);
+  const trials = plan.trials;
+  for (let i = 0; i < n; i++) y[i] = family.draw(family.linkInverse(eta[i]), stream, params, trials);
 }
 
 function assemble(plan: SimulationPlan, n: number, out: Outputs, effectValues: Float64Array[]): SimulatedData {

@@ -6,7 +6,9 @@ import type { ColumnCatalog } from './columns';
 import type { ResponseFamily } from '../family/index';
 import type { RandomTruth, ResolvedFactor, ResolvedTruth, TruthPart, TruthTerm } from './types';
 
-const TRUTH_KEYS = ['fixed', 'sd', 'slopes', 'correlations'];
+const TRUTH_KEYS = ['fixed', 'sd', 'slopes', 'correlations', 'aggregation'];
+/** Family parameters given in truth.sd (a residual SD); the others (the NB aggregation k) sit in truth itself. */
+const SD_PARAMS = ['residual'];
 
 export function parseTruth(
   value: unknown,
@@ -40,13 +42,21 @@ export function parseTruth(
   const sd: Record<string, number> = {};
   for (const key of Object.keys(sdObj)) {
     const p = keyPath(sdPath, key);
-    if (!catalog.factors.includes(key) && !family.params.includes(key)) {
-      fail(`${p}: unknown key "${key}"; expected a factor (${listNames(catalog.factors)}) or ${listNames(family.params)}`, p);
+    const sdParams = family.params.filter((q) => SD_PARAMS.includes(q));
+    if (!catalog.factors.includes(key) && !sdParams.includes(key)) {
+      fail(`${p}: unknown key "${key}"; expected a factor (${listNames(catalog.factors)})${sdParams.length ? ` or ${listNames(sdParams)}` : ''}`, p);
     }
     sd[key] = expectNonNegative(sdObj[key], p);
   }
   const familyParams: Record<string, number> = {};
   for (const param of family.params) {
+    if (!SD_PARAMS.includes(param)) {
+      const p = keyPath(path, param);
+      const v = obj[param];
+      if (typeof v !== 'number' || !Number.isFinite(v) || v <= 0) fail(`${p}: expected a number > 0 (required by the ${family.name} family; e.g. aggregation k = 2 for clumped counts)`, p);
+      familyParams[param] = v as number;
+      continue;
+    }
     const p = keyPath(sdPath, param);
     if (sd[param] === undefined) fail(`${p}: expected a number ≥ 0 (required by the ${family.name} family)`, p);
     familyParams[param] = sd[param];

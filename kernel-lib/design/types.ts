@@ -109,6 +109,8 @@ export interface SurveyDesignSpec {
   response?: string;
   /** Response family. Default "gaussian". */
   family?: string;
+  /** Binomial designs: trials per observation (default 1: presence/absence). */
+  trials?: number;
   covariates?: CovariateSpec[];
   unequal?: UnequalSpec;
   truth: TruthSpec;
@@ -205,6 +207,8 @@ export interface SurveyDesign {
   replicates: number;
   response: string;
   family: string;
+  /** Binomial: trials per observation (1 otherwise). */
+  trials: number;
   factors: ResolvedFactor[];
   perCell: number;
   missing: number;

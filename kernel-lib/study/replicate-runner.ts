@@ -82,6 +82,9 @@ export class ReplicateRunner {
       try {
         design = buildDesign(data.columns as Columns, variant.model);
         fit = fitDesign(design, {
+          family: variant.model.family,
+          integration: variant.model.integration,
+          nodes: variant.model.nodes,
           estimation: variant.model.estimation,
           level: variant.model.level,
           interval: this.intervals.get(variant.name)!,
@@ -179,13 +182,13 @@ function correlationTruth(design: SurveyDesign, factor: string, a: string, b: st
   return given?.[`${a}:${b}`] ?? given?.[`${b}:${a}`] ?? 0;
 }
 
-/** Random terms a variant estimates, plus the residual, in model order. */
+/** Random terms a variant estimates, plus the residual (normal responses only: counts have none), in model order. */
 function randomTermsOf(variant: ResolvedVariant): [string, string[]][] {
   const out: [string, string[]][] = [];
   for (const g of variant.model.groups) {
     if (g.as === 'random') out.push([g.factor, ['intercept', ...(g.slopes ?? [])]]);
   }
-  out.push(['residual', ['']]);
+  if (variant.model.family === 'gaussian') out.push(['residual', ['']]);
   return out;
 }
 

@@ -111,16 +111,21 @@ export function parseCsv(text: string, options: CsvOptions = {}): Columns {
     let numbers = 0;
     let texts = 0;
     let commaNumbers = 0;
+    let dotNumbers = 0;
     for (let r = 1; r <= n; r++) {
       const cell = records[r].fields[j];
       if (isMissing(cell)) continue;
-      if (pattern.test(cell)) numbers++;
+      if (pattern.test(cell)) {
+        numbers++;
+        if (cell.includes('.')) dotNumbers++;
+      }
       else {
         texts++;
         if (decimal === '.' && looksLikeDecimalComma(cell)) commaNumbers++;
       }
     }
-    if (texts > 0 && commaNumbers === texts) {
+    // every non-number a decimal-comma number and no decimal point anywhere: the file's convention, not a typo
+    if (texts > 0 && commaNumbers === texts && dotNumbers === 0) {
       const r = records.findIndex((rec, i) => i > 0 && looksLikeDecimalComma(rec.fields[j]));
       throw new QuadratInputError(
         `${where}column "${header[j]}": numbers are written with a decimal comma (line ${records[r].line} has "${records[r].fields[j].trim()}"); ` +

@@ -9,6 +9,7 @@ const { tmpdir } = require('node:os');
 const { join } = require('node:path');
 const { execFileSync } = require('node:child_process');
 const { engineCases, toCsv } = require('./engine-cases');
+const { countCases, countStudy } = require('./count-speed');
 const { readCsvFile } = require('../dist/data/csv');
 const { parseModel } = require('../dist/model/parse');
 const { buildDesign } = require('../dist/data/build-design');
@@ -170,8 +171,9 @@ async function main() {
     inference.push(timeInference(c.name, design, quick ? 1 : 4));
   }
   const study = args.includes('--engine-only') ? null : await studyBench();
+  const counts = [...countCases(quick ? 0.5 : 2), countStudy(quick ? 1 : 3)];
   if (asJson) {
-    process.stdout.write(JSON.stringify([...rows, ...(study ? [study] : []), ...inference], null, 2) + '\n');
+    process.stdout.write(JSON.stringify([...rows, ...(study ? [study] : []), ...inference, ...counts], null, 2) + '\n');
     return;
   }
   console.log('Engine benchmark: one REML fit per call, same data for Quadrat and statsmodels MixedLM (lbfgs), one core');
@@ -188,6 +190,10 @@ async function main() {
     console.log(r.case.padEnd(44), String(r.waldMicroseconds).padStart(9), String(r.satterthwaiteMicroseconds).padStart(17), `${r.satterthwaiteFactor}x`.padStart(7),
       String(r.kenwardRogerMicroseconds).padStart(17), `${r.kenwardRogerFactor}x`.padStart(7));
   }
+  console.log('');
+  console.log('Count and detection fits (same data for Quadrat mixed models and statsmodels GLM without random effect)');
+  for (const r of counts.slice(0, -1)) console.log(`  ${r.case}: ${r.fitsPerSecond.toFixed(0)} fits/s; ${r.reference} ${r.referenceFitsPerSecond.toFixed(0)} fits/s; ratio ${r.ratio.toFixed(2)}`);
+  console.log(`  ${counts[counts.length - 1].case}: ${counts[counts.length - 1].replicatesPerSecondInThread.toFixed(1)} replicates/s in one thread`);
   if (study) {
     console.log('');
     console.log(`Study benchmark (${study.case}):`);

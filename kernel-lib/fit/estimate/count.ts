@@ -5,7 +5,8 @@
  */
 import type { DesignMatrices } from '../../data/design-matrices';
 import type { ConditionalModeRow, ResponseSummary } from '../result';
-import { estimateCountModel, COUNT_BOUNDARY_TOLERANCE } from './count-model';
+import { estimateCountModel } from './count-model';
+import { termCovariances } from './normal';
 import { aliasReasons } from '../alias-reasons';
 import type { CountFamily } from './glm-response';
 import type { Estimate, EstimateStep, TermCovariance } from './types';
@@ -42,7 +43,7 @@ export function countEstimateStep(family: CountFamily): EstimateStep {
       aliasReasons: aliasReasons(design, est.xtx, design.p, est.estimable, est.aliased), warnings, converged: est.converged,
       evaluations: est.evaluations, theta: est.theta, deviance: -2 * est.logLik, logLik: est.logLik,
       beta: est.beta, betaCov: est.cov, residualDf: design.n - est.estimable.length, exactT: false, dispersion: undefined,
-      terms: termCovariances(design, est), modes: options.modes ? modeRows(design, est) : [],
+      terms: linkScaleCovariances(design, est), modes: options.modes ? modeRows(design, est) : [],
       fitted: options.fitted ? est.mu : new Float64Array(0), response,
       extraParameters: family === 'negative-binomial' ? 1 : 0,
     };
@@ -50,26 +51,10 @@ export function countEstimateStep(family: CountFamily): EstimateStep {
 }
 
 /** Σ = T Tᵀ per random term on the link scale (no residual variance in these families). */
-function termCovariances(design: DesignMatrices, est: ReturnType<typeof estimateCountModel>): TermCovariance[] {
-  const layout = est.layout;
-  if (!layout) return [];
-  layout.setTheta(est.theta);
-  return design.random.map((term) => {
-    const s = layout.termIndex.get(term)!;
-    const k = layout.terms[s].k;
-    const T = layout.templates[s];
-    const cov = new Float64Array(k * k);
-    let boundary = false;
-    for (let i = 0; i < k; i++) {
-      for (let j = 0; j < k; j++) {
-        let sum = 0;
-        for (let c = 0; c <= Math.min(i, j); c++) sum += T[i * k + c] * T[j * k + c];
-        cov[i * k + j] = sum;
-      }
-      if (Math.abs(T[i * k + i]) < COUNT_BOUNDARY_TOLERANCE) boundary = true;
-    }
-    return { term, cov, boundary };
-  });
+function linkScaleCovariances(design: DesignMatrices, est: ReturnType<typeof estimateCountModel>): TermCovariance[] {
+  if (!est.layout) return [];
+  est.layout.setTheta(est.theta);
+  return termCovariances(est.layout, design, 1);
 }
 
 function modeRows(design: DesignMatrices, est: ReturnType<typeof estimateCountModel>): ConditionalModeRow[] {

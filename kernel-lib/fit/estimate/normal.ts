@@ -97,8 +97,8 @@ export function estimateNormal(design: DesignMatrices, options: EstimateOptions)
   };
 }
 
-/** Σ = σ² T Tᵀ per random term, in the design's term order. */
-function termCovariances(dev: ProfiledDeviance, design: DesignMatrices, sigma2: number): TermCovariance[] {
+/** Σ = σ² T Tᵀ per random term, in the design's term order (count families: σ² = 1, Σ on the link scale). */
+export function termCovariances(dev: ProfiledDeviance, design: DesignMatrices, sigma2: number): TermCovariance[] {
   return design.random.map((term) => {
     const s = dev.termIndex.get(term)!;
     const T = dev.templates[s];

@@ -94,7 +94,8 @@ export class TargetProjector {
       .filter((r) => absorbing.has(r.factor) && r.sd.some((s) => s > 0))
       .map((r) => ({ factor: r.factor, slopes: r.terms.slice(1) }));
     const noIntercept = !own.has(INTERCEPT) && intercept !== 0;
-    this.active = this.factors.length > 0 || absorbedTerm || noIntercept;
+    // only coefficients in variant.realised take projected targets: without any, nothing to project
+    this.active = variant.realised.length > 0 && (this.factors.length > 0 || absorbedTerm || noIntercept);
   }
 
   /**

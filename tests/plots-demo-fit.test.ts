@@ -3,7 +3,7 @@ import { readFileSync } from 'fs';
 import { join } from 'path';
 import { readCsvFile } from '../kernel-lib/data/csv';
 import { fitModel } from '../kernel-lib/analyse/fit-model';
-import { conditionalModes, fixedEffectsCompare, groupData, normalQuantile, residualsVsFitted } from '../kernel-lib/plots';
+import { conditionalModes, fixedEffectsCompare, groupData, normalQuantilePlot, residualsVsFitted } from '../kernel-lib/plots';
 import { expectValidAndRendered, markItems } from './helpers/vega-lite-checks';
 
 // The single-fit builders on real fit results: the invented Larkspur Fen survey (data/README.md)
@@ -34,7 +34,7 @@ describe('single-fit plots of the demo survey fits', () => {
   it('residual plots draw one point per observation', async () => {
     const a = await expectValidAndRendered(residualsVsFitted(yearRandom), ['<path']);
     expect(markItems(a.view, 'residual_points')).toHaveLength(yearRandom.observations);
-    const b = await expectValidAndRendered(normalQuantile(yearRandom), ['<path']);
+    const b = await expectValidAndRendered(normalQuantilePlot(yearRandom), ['<path']);
     expect(markItems(b.view, 'quantile_points')).toHaveLength(yearRandom.observations);
   });
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { normalQuantile, residualsVsFitted } from '../kernel-lib/plots';
+import { normalQuantilePlot, residualsVsFitted } from '../kernel-lib/plots';
 import { normalQuantilePairs } from '../kernel-lib/plots/normal-quantile';
 import { expectSpecSnapshot, expectValidAndRendered, markItems, scaled } from './helpers/vega-lite-checks';
 
@@ -33,7 +33,7 @@ describe('residualsVsFitted(fit)', () => {
   });
 });
 
-describe('normalQuantile(fit)', () => {
+describe('normalQuantilePlot(fit)', () => {
   it('pairs sorted residuals with normal quantiles at (i - 0.5)/n', () => {
     // scipy.stats.norm.ppf([(i - 0.5) / 5 for i in 1..5]) (scipy 1.10):
     // [-1.2815515655446004, -0.5244005127080409, 0, 0.5244005127080407, 1.2815515655446004].
@@ -49,7 +49,7 @@ describe('normalQuantile(fit)', () => {
   });
 
   it('matches the snapshot, validates against the Vega-Lite schema and renders', async () => {
-    const spec = normalQuantile(FIT);
+    const spec = normalQuantilePlot(FIT);
     await expectSpecSnapshot(spec, 'normal-quantile');
     const { view } = await expectValidAndRendered(spec, ['<path']);
     const points = markItems(view, 'quantile_points');
@@ -62,7 +62,7 @@ describe('normalQuantile(fit)', () => {
   });
 
   it('draws the reference line with the quartile slope', async () => {
-    const { view } = await expectValidAndRendered(normalQuantile(FIT), []);
+    const { view } = await expectValidAndRendered(normalQuantilePlot(FIT), []);
     const line = markItems(view, 'quartile_line');
     expect(line).toHaveLength(2);
     for (const end of line) {
@@ -72,8 +72,8 @@ describe('normalQuantile(fit)', () => {
   });
 
   it('rejects residuals without a finite value', () => {
-    expect(() => normalQuantile({ residuals: Float64Array.from([NaN]) })).toThrow(
-      /normalQuantile: 'residuals' holds no finite value \(length 1\)/,
+    expect(() => normalQuantilePlot({ residuals: Float64Array.from([NaN]) })).toThrow(
+      /normalQuantilePlot: 'residuals' holds no finite value \(length 1\)/,
     );
   });
 });

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import seedrandom from 'seedrandom';
-import { ReplicateRow, ReplicateStatus } from '../kernel-lib/study/replicate-row';
-import { MetricName, MetricRow, formatMetric, summarise } from '../kernel-lib/study/metrics';
+import { type ReplicateRow, type ReplicateStatus } from '../kernel-lib/study/replicate-row';
+import { type MetricName, type MetricRow, formatMetric, summarise } from '../kernel-lib/study/metrics';
 import { toWideTable } from '../kernel-lib/study/wide-table';
 import { medianOfSorted, medianStandardError, sortedCopy } from '../kernel-lib/study/quantile';
 

@@ -9,7 +9,7 @@ import { readStudy, readingText } from '../study/reading';
 import { runStudyWithProgress } from './study-command';
 
 /** Project root: dist/cli/ or kernel-lib/cli/ are two levels below it. */
-export const PROJECT_ROOT = join(__dirname, '..', '..');
+const PROJECT_ROOT = join(__dirname, '..', '..');
 
 /**
  * `quadrat demo`: the bundled study of the invented Larkspur Fen survey (year random vs year

@@ -8,7 +8,7 @@ import { checkLevel } from '../model/option-checks';
 import { fitToJson, formatFit } from './format-fit';
 import { COMMAND_HELP } from './help';
 
-export const FIT_USAGE = `quadrat ${COMMAND_HELP.fit.usage}`;
+const FIT_USAGE = `quadrat ${COMMAND_HELP.fit.usage}`;
 
 /** `quadrat fit`: fit one model description to a CSV file. */
 export function fitCommand(argv: string[], print: (s: string) => void): number {

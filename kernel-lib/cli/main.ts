@@ -72,7 +72,7 @@ export async function main(argv: string[]): Promise<number> {
  * "--workers -1" as "--workers=-1": the argument parser would take "-1" for an option and answer
  * "argument is ambiguous"; joined, the value reaches the option's own check and its message.
  */
-export function joinNegativeValues(argv: string[]): string[] {
+function joinNegativeValues(argv: string[]): string[] {
   const out: string[] = [];
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];

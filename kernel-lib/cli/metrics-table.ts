@@ -3,7 +3,7 @@ import { formatMetric } from '../study/format-metric';
 import { renderTable, type Cell } from '../display/text-table';
 
 /** Metrics shown by default, in this order, when present. */
-export const DEFAULT_METRICS = ['coverage', 'noIntervalShare', 'bias', 'rmse', 'width', 'power', 'typeIError', 'sdMean', 'sdMedian', 'singularShare', 'failureShare', 'notEstimableShare'];
+const DEFAULT_METRICS = ['coverage', 'noIntervalShare', 'bias', 'rmse', 'width', 'power', 'typeIError', 'sdMean', 'sdMedian', 'singularShare', 'failureShare', 'notEstimableShare'];
 
 /** One line per scenario × variant × parameter, a column per metric, each "value (MCSE)". */
 export function formatMetricsTable(metrics: readonly MetricRow[], wanted: string[] = DEFAULT_METRICS): string {

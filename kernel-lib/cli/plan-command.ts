@@ -10,7 +10,7 @@ import type { ModelSpec } from '../model/types';
 import { COMMAND_HELP } from './help';
 import { readJsonFile } from './read-json-file';
 
-export const PLAN_USAGE = `quadrat ${COMMAND_HELP['study plan'].usage}`;
+const PLAN_USAGE = `quadrat ${COMMAND_HELP['study plan'].usage}`;
 
 /**
  * `quadrat study plan`: the smallest value of the design's plan.vary that meets the plan's goals.

@@ -17,7 +17,7 @@ import { progressBar } from './progress-bar';
 import { planCommand } from './plan-command';
 import { COMMAND_HELP, SUBCOMMANDS } from './help';
 
-export const STUDY_USAGE = SUBCOMMANDS.study.map((s) => `quadrat ${COMMAND_HELP[`study ${s}`].usage}`).join('\n  ');
+const STUDY_USAGE = SUBCOMMANDS.study.map((s) => `quadrat ${COMMAND_HELP[`study ${s}`].usage}`).join('\n  ');
 
 function intOption(value: string | undefined, name: string, min: number): number | undefined {
   return value === undefined ? undefined : parseWholeNumber(value, name, min);

@@ -16,7 +16,7 @@ export interface TableLike {
 }
 
 /** Whether `data` looks like an arquero table. */
-export function isTableLike(data: unknown): data is TableLike {
+function isTableLike(data: unknown): data is TableLike {
   return (
     typeof data === 'object' &&
     data !== null &&

@@ -171,7 +171,7 @@ export function readCsvFile(path: string, options: Omit<CsvOptions, 'source'> = 
 }
 
 /** UTF-8 text of a file, or an error saying what the bytes look like instead. */
-export function decodeText(bytes: Uint8Array, path: string): string {
+function decodeText(bytes: Uint8Array, path: string): string {
   const saveAs = 'save it as CSV with UTF-8 encoding ("CSV UTF-8") and read that file';
   if ((bytes[0] === 0xff && bytes[1] === 0xfe) || (bytes[0] === 0xfe && bytes[1] === 0xff)) {
     const order = bytes[0] === 0xff ? 'little-endian' : 'big-endian';

@@ -16,7 +16,7 @@ import type { BetweenSpec, ResolvedCovariate, ResolvedFactor } from './types';
 
 const COVARIATE_KEYS = ['name', 'varies', 'normal', 'uniform', 'categories', 'between', 'allocation'];
 const DISTRIBUTIONS = ['normal', 'uniform', 'categories'];
-export const OBSERVATION = 'observation';
+const OBSERVATION = 'observation';
 
 /** Tolerance for probabilities summing to 1 (they are then rescaled to sum to 1 exactly). */
 const PROBABILITY_SUM_TOLERANCE = 1e-6;

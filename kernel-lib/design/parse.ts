@@ -22,7 +22,7 @@ import { parseVariants } from './variants';
 
 const DESIGN_KEYS = ['seed', 'replicates', 'factors', 'perCell', 'missing', 'response', 'family', 'trials', 'covariates', 'unequal', 'truth', 'variants', 'grid', 'plan'];
 
-export const DESIGN_DEFAULTS = { perCell: 1, missing: 0, response: 'y', family: 'gaussian' };
+const DESIGN_DEFAULTS = { perCell: 1, missing: 0, response: 'y', family: 'gaussian' };
 
 export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
   let raw = input;

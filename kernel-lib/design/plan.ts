@@ -8,7 +8,7 @@ import { buildLayout, type Layout } from './layout';
 import type { SurveyDesign } from './types';
 
 export const KIND_NORMAL = 0;
-export const KIND_UNIFORM = 1;
+const KIND_UNIFORM = 1;
 export const KIND_CATEGORICAL = 2;
 
 /** One covariate in the form the row loop reads. All instances share one shape. */

@@ -146,7 +146,7 @@ function columnNames(column: string, model: ResolvedModel, levels: Map<string, s
 }
 
 /** Fixed-effect coefficient names in model order: intercept, fixed terms, group means of split covariates, then fixed grouping factors. */
-export function variantCoefficients(model: ResolvedModel, levels: Map<string, string[]>): string[] {
+function variantCoefficients(model: ResolvedModel, levels: Map<string, string[]>): string[] {
   const names = model.intercept ? [INTERCEPT] : [];
   // without an intercept the first categorical main effect has one coefficient per level (data/build-design)
   const full = model.intercept ? -1 : model.fixed.findIndex((t) => termColumns(t).length === 1 && levels.has(termColumns(t)[0]));

@@ -3,9 +3,9 @@
  * column set. Numbers are rounded to significant digits; metric rows that carry a Monte Carlo
  * standard error show "value (mcse)" by the rule of formatMetric.
  */
-import { Columns, TableLike, columnLength, toColumns } from '../data/columns';
+import { type Columns, type TableLike, columnLength, toColumns } from '../data/columns';
 import { QuadratInputError, listNames } from '../model/errors';
-import { Cell, formatNumber, renderTable } from './text-table';
+import { type Cell, formatNumber, renderTable } from './text-table';
 import { formatMetric } from '../study/format-metric';
 import { escapeHtml } from './escape-html';
 import { displayBundle } from './tslab-bridge';

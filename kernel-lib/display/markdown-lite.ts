@@ -18,6 +18,7 @@ function inline(text: string): string {
     .replace(/(^|[^\w])_([^_\s][^_]*)_(?=$|[^\w])/g, '$1<em>$2</em>')
     // Only http(s), mailto and in-page links: a "javascript:" URL stays text.
     .replace(/\[([^\]]+)\]\(((?:https?:|mailto:|#)[^)\s]*)\)/g, '<a href="$2">$1</a>');
+  // eslint-disable-next-line no-control-regex -- NUL marks the code spans set aside above
   return out.replace(/\u0000(\d+)\u0000/g, (_m, i: string) => codeSpans[Number(i)]);
 }
 

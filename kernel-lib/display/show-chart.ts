@@ -13,7 +13,7 @@
  */
 import { escapeHtml, jsonForScript } from './escape-html';
 import { specToSvg, svgDataUri } from './spec-to-svg';
-import { MimeBundle, displayBundle, renderingToHtml } from './tslab-bridge';
+import { type MimeBundle, displayBundle, renderingToHtml } from './tslab-bridge';
 import { claimLibraryInlining, vegaLibrariesScript } from './vega-libraries';
 
 export const VEGA_LITE_MIME = 'application/vnd.vegalite.v5+json';

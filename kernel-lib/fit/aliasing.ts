@@ -9,7 +9,7 @@ export interface AliasReport {
 }
 
 /** Relative pivot below which a column counts as a combination of the earlier ones. */
-export const ALIAS_TOLERANCE = 1e-9;
+const ALIAS_TOLERANCE = 1e-9;
 
 /**
  * Detect aliased columns of X by a sequential Cholesky factorisation of the scaled cross-product

@@ -5,7 +5,7 @@
 import type { DesignMatrices } from '../data/design-matrices';
 
 /** Beyond this magnitude squares and cross-products of a column overflow double precision (about 1.8e308). */
-export const OVERFLOW_MAGNITUDE = 1e150;
+const OVERFLOW_MAGNITUDE = 1e150;
 
 /** Why the design cannot be fitted ('' when it can): constant response, response constant within every group, overflowing columns. */
 export function degenerateReason(design: DesignMatrices): string {

@@ -41,7 +41,7 @@ const ROLES: readonly GroupRole[] = ['random', 'fixed'];
 const ESTIMATIONS: readonly Estimation[] = ['REML', 'ML'];
 const MISSING_POLICIES: readonly MissingPolicy[] = ['drop', 'reject'];
 
-export const MODEL_DEFAULTS = {
+const MODEL_DEFAULTS = {
   estimation: 'REML' as Estimation,
   missing: 'drop' as MissingPolicy,
   // Wald intervals are too narrow with few groups (Kenward and Roger 1997; tests/inference-coverage);

@@ -6,10 +6,10 @@
 import { QuadratInputError, describeValue } from './errors';
 import type { GroupSpec, Integration, ResponseFamilyName } from './types';
 
-export const RESPONSE_FAMILY_NAMES: readonly ResponseFamilyName[] = ['gaussian', 'poisson', 'binomial', 'negative-binomial'];
+const RESPONSE_FAMILY_NAMES: readonly ResponseFamilyName[] = ['gaussian', 'poisson', 'binomial', 'negative-binomial'];
 const INTEGRATIONS: readonly Integration[] = ['laplace', 'quadrature'];
 /** Default adaptive Gauss-Hermite nodes (Pinheiro and Bates 1995 found a handful of nodes ample for one random intercept). */
-export const DEFAULT_NODES = 9;
+const DEFAULT_NODES = 9;
 const MAX_NODES = 50;
 
 export interface ResponseFields {

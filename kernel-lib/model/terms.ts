@@ -31,7 +31,7 @@ export function termLabel(term: FixedTerm): string {
 }
 
 /** Separator of a column and one of its levels in a coefficient name ("habitat=wet"). */
-export const LEVEL_SEPARATOR = '=';
+const LEVEL_SEPARATOR = '=';
 
 /** Name of a treatment-coded dummy column: `habitat=wet`. */
 export function levelName(column: string, level: string): string {

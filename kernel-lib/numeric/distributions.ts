@@ -5,11 +5,6 @@ export function normalCdf(x: number): number {
   return 0.5 * erfc(-x / Math.SQRT2);
 }
 
-/** Standard normal density. */
-export function normalDensity(x: number): number {
-  return Math.exp(-0.5 * x * x) / Math.sqrt(2 * Math.PI);
-}
-
 /** Standard normal quantile by Wichura (1988), Applied Statistics 37:477, algorithm AS 241 (PPND16). */
 export function normalQuantile(p: number): number {
   if (!(p > 0 && p < 1)) {
@@ -48,17 +43,10 @@ export function normalQuantile(p: number): number {
 }
 
 /** Student t CDF with ν degrees of freedom through the incomplete beta function (Abramowitz and Stegun 1964, 26.7.1 and 26.5.27). */
-export function studentTCdf(t: number, df: number): number {
+function studentTCdf(t: number, df: number): number {
   if (!Number.isFinite(df)) return normalCdf(t);
   const tail = 0.5 * incompleteBeta(df / (df + t * t), df / 2, 0.5);
   return t > 0 ? 1 - tail : tail;
-}
-
-/** Student t density. */
-export function studentTDensity(t: number, df: number): number {
-  if (!Number.isFinite(df)) return normalDensity(t);
-  const lc = logGamma((df + 1) / 2) - logGamma(df / 2) - 0.5 * Math.log(df * Math.PI);
-  return Math.exp(lc - ((df + 1) / 2) * Math.log1p((t * t) / df));
 }
 
 /**

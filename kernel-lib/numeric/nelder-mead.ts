@@ -9,9 +9,9 @@ export interface MinimiseResult {
 export interface NelderMeadOptions {
   /** Initial step per coordinate. Default 0.25 (a quarter of the usual θ scale). */
   step?: number;
-  /** Stop when the spread of simplex values is below this. Default 1e-10. */
+  /** Stop when the spread of simplex values is below this. Default 1e-8. */
   fTolerance?: number;
-  /** and the simplex fits in a box of this half-width. Default 1e-7. */
+  /** and the simplex fits in a box of this half-width. Default 1e-5. */
   xTolerance?: number;
   /** Default 400 × dimension². */
   maxEvaluations?: number;
@@ -79,7 +79,7 @@ export function nelderMeadBounded(
     const best = order[0];
     const worst = order[d];
     const second = order[d - 1];
-    let spreadF = vals[worst] - vals[best];
+    const spreadF = vals[worst] - vals[best];
     let spreadX = 0;
     for (let i = 0; i <= d; i++) {
       for (let j = 0; j < d; j++) spreadX = Math.max(spreadX, Math.abs(pts[i][j] - pts[best][j]));

@@ -22,7 +22,7 @@ import {
 const BUILDER = 'conditionalModes';
 
 /** Normal 97.5% quantile: mode ± 1.96 conditional SD is an approximate 95% interval (common practice, no source). */
-export const MODE_INTERVAL_MULTIPLIER = 1.96;
+const MODE_INTERVAL_MULTIPLIER = 1.96;
 
 /** More levels than this and the level labels are hidden (they would overlap). */
 const MAX_LABELLED_LEVELS = 60;

@@ -13,7 +13,7 @@ export { conditionalModes } from './conditional-modes';
 export type { ConditionalModesOptions } from './conditional-modes';
 export { residualsVsFitted } from './residuals-vs-fitted';
 export type { ResidualsVsFittedOptions } from './residuals-vs-fitted';
-export { normalQuantile } from './normal-quantile';
+export { normalQuantilePlot } from './normal-quantile';
 export type { NormalQuantileOptions } from './normal-quantile';
 export { fixedEffectsCompare } from './fixed-effects-compare';
 export type { FixedEffectsCompareOptions, NamedFit } from './fixed-effects-compare';

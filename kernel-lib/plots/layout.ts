@@ -1,7 +1,7 @@
 /** Wraps layers, inline data and titles into a complete spec, faceted when asked. */
 import { THEME_CONFIG, VEGA_LITE_SCHEMA } from './theme';
 import type { InlineRow, LayerPart, VegaLiteSpec } from './types';
-import { KeyOrder, fieldRef } from './plot-input';
+import { type KeyOrder, fieldRef } from './plot-input';
 
 export interface FacetField {
   field: string;

@@ -5,9 +5,9 @@
 import type { MetricName, MetricRow } from '../study/metrics';
 import { BAND_COLOUR, REFERENCE_COLOUR } from './theme';
 import type { FieldTitles, InlineRow, LayerPart, VegaLiteSpec } from './types';
-import { FacetField, ONE_PER_CELL, layeredSpec } from './layout';
+import { type FacetField, ONE_PER_CELL, layeredSpec } from './layout';
 import {
-  KeyOrder,
+  type KeyOrder,
   checkArray,
   checkFieldOption,
   checkFieldTitles,
@@ -35,7 +35,7 @@ import {
 const BUILDER = 'metricVsScenario';
 
 /** Error bars span value ± MC_MULTIPLIER × MCSE (common practice, no source). */
-export const MC_MULTIPLIER = 2;
+const MC_MULTIPLIER = 2;
 
 type Reference = 'nominal band' | 'nominal' | 'zero' | 'none';
 
@@ -91,7 +91,7 @@ const METRICS: Record<MetricName, MetricInfo> = {
 };
 
 /** Metric names the builder accepts (every metric the study summary produces). */
-export const PLOTTABLE_METRICS = Object.keys(METRICS) as MetricName[];
+const PLOTTABLE_METRICS = Object.keys(METRICS) as MetricName[];
 
 /** Fields the builder adds to each data row; scenario fields must not use these names. */
 const COMPUTED_FIELDS = ['value', 'mcse', 'n', 'mcLower', 'mcUpper', 'bandLower', 'bandUpper', 'note'];
@@ -323,7 +323,7 @@ export function metricVsScenario<R extends MetricRow>(
 }
 
 /** Binomial Monte Carlo SE of a proportion p over n replicates (Morris, White and Crowther 2019, Table 6). */
-export function binomialMcse(p: number, n: number): number {
+function binomialMcse(p: number, n: number): number {
   return Math.sqrt((p * (1 - p)) / n);
 }
 

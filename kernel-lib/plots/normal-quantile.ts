@@ -7,7 +7,7 @@ import { layeredSpec } from './layout';
 import { checkOptionsObject, fail, plural, positiveOption, stringOption } from './plot-input';
 import { readResidualInput } from './residual-input';
 
-const BUILDER = 'normalQuantile';
+const BUILDER = 'normalQuantilePlot';
 
 export interface NormalQuantileOptions {
   /** Chart title. Default: "Normal quantile plot of the residuals". */
@@ -19,7 +19,7 @@ export interface NormalQuantileOptions {
 }
 
 /** Sample quantile by linear interpolation between order statistics (Hyndman and Fan 1996, The American Statistician 50:361, definition 7). */
-export function sortedQuantile(sorted: ArrayLike<number>, p: number): number {
+function sortedQuantile(sorted: ArrayLike<number>, p: number): number {
   const h = (sorted.length - 1) * p;
   const lo = Math.floor(h);
   const hi = Math.min(lo + 1, sorted.length - 1);
@@ -71,7 +71,7 @@ export function normalQuantilePairs(values: ArrayLike<number>, ids?: ArrayLike<n
  *
  * Throws when `residuals` is missing or holds no finite value.
  */
-export function normalQuantile(
+export function normalQuantilePlot(
   fit: Pick<FitResult, 'residuals'> & Partial<Pick<FitResult, 'rowIds'>>,
   options: NormalQuantileOptions = {},
 ): VegaLiteSpec {

@@ -104,7 +104,7 @@ export function keyColumn(raw: readonly (string | number)[]): { keys: (string | 
 }
 
 /** Deterministic, locale-independent string order. */
-export function codeUnitOrder(a: string, b: string): number {
+function codeUnitOrder(a: string, b: string): number {
   return a < b ? -1 : a > b ? 1 : 0;
 }
 

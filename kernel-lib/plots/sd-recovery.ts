@@ -5,9 +5,9 @@
 import type { ReplicateRow } from '../study/replicate-row';
 import { REFERENCE_COLOUR } from './theme';
 import type { FieldTitles, InlineRow, LayerPart, VegaLiteSpec } from './types';
-import { FacetField, layeredSpec } from './layout';
+import { type FacetField, layeredSpec } from './layout';
 import {
-  KeyOrder,
+  type KeyOrder,
   checkArray,
   checkFieldOption,
   checkFieldTitles,

@@ -14,7 +14,7 @@ export interface StudyOptionsChecked {
 }
 
 /** Largest batch: a batch is held in memory as rows before it is written. */
-export const MAX_BATCH_SIZE = 100_000;
+const MAX_BATCH_SIZE = 100_000;
 
 export function checkStudyOptions(options: Record<string, unknown>, cores = availableParallelism()): StudyOptionsChecked {
   if (typeof options !== 'object' || options === null) {

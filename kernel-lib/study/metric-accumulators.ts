@@ -4,7 +4,7 @@
  * SD-estimate buffer (kept for the median) doubles.
  */
 import { RunningMoments } from './running-moments';
-import { ReplicateKind, ReplicateRow, ReplicateStatus, isUnusableStatus } from './replicate-row';
+import { type ReplicateKind, type ReplicateRow, type ReplicateStatus, isUnusableStatus } from './replicate-row';
 
 export class ParameterAccumulator {
   /** All rows of the group, usable or not. */

@@ -6,7 +6,7 @@
  * Pure: rows in, metric rows out. One pass over the rows, grouped by nested Maps on
  * scenario -> variant -> parameter.
  */
-import { ReplicateKind, ReplicateRow, checkReplicateRow } from './replicate-row';
+import { type ReplicateKind, type ReplicateRow, checkReplicateRow } from './replicate-row';
 import {
   FitStatusAccumulator,
   ParameterAccumulator,
@@ -202,7 +202,7 @@ function proportionRow(base: RowBase, metric: MetricName, count: number, n: numb
 
 /** Failure reasons named in the note of a failureShare row. */
 const MAX_REASONS = 3;
-export const FAILURE_REASONS_PREFIX = 'most common reasons: ';
+const FAILURE_REASONS_PREFIX = 'most common reasons: ';
 
 type RowBase = Pick<MetricRow, 'scenario' | 'variant' | 'parameter' | 'kind'>;
 

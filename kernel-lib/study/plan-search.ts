@@ -76,7 +76,7 @@ export function judgeGoal(goal: PlanGoal, est: GoalEstimate, z = PLAN_Z): GoalLo
 }
 
 /** All goals met, any goal missed, or not yet clear. */
-export function combine(looks: readonly GoalLook[]): Verdict {
+function combine(looks: readonly GoalLook[]): Verdict {
   if (looks.some((l) => l.verdict === 'fails')) return 'fails';
   return looks.every((l) => l.verdict === 'meets') ? 'meets' : 'undecided';
 }

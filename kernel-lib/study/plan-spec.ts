@@ -45,7 +45,7 @@ export const PROPORTION_METRICS: readonly MetricName[] = ['power', 'typeIError',
 
 const PLAN_KEYS = ['vary', 'values', 'from', 'to', 'step', 'variant', 'parameter', 'metric', 'atLeast', 'atMost', 'goals', 'replicates', 'maxReplicates'];
 const GOAL_KEYS = ['variant', 'parameter', 'metric', 'atLeast', 'atMost'];
-export const PLAN_DEFAULTS = { replicates: 100, maxReplicates: 3200 };
+const PLAN_DEFAULTS = { replicates: 100, maxReplicates: 3200 };
 
 /** SD parameters a variant estimates: one per random term, and the residual. */
 function sdParameters(variant: ResolvedVariant): string[] {

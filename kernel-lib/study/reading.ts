@@ -19,7 +19,7 @@ import { scenarioFieldName } from './scenario-fields';
 import type { StudyManifest } from './study-folder';
 
 /** Monte Carlo confidence multiplier of every rule here (≈ 95%). */
-export const READING_Z = 2;
+const READING_Z = 2;
 
 export const READING_CAUTIONS = [
   'These statements hold for the simulated designs and true values only; a survey that differs (other variances, skewed or count responses, informative gaps) can behave differently.',
@@ -47,7 +47,7 @@ export function defaultTolerance(nominal: number): number {
 }
 
 /** Total replicates that make z·MCSE of a quantity with per-replicate SD `sd` smaller than `margin`. */
-export function replicatesFor(sd: number, margin: number, z = READING_Z): number {
+function replicatesFor(sd: number, margin: number, z = READING_Z): number {
   if (!(margin > 0) || !Number.isFinite(sd)) return Infinity;
   // less a hair, so that a product that is whole in exact arithmetic is not pushed up by rounding
   return Math.ceil(((z * sd) / margin) ** 2 - 1e-9);
@@ -85,7 +85,7 @@ export function percentWithError(value: number, mcse: number): string {
 }
 
 /** A nominal level as a percentage: 0.95 -> "95%", 0.975 -> "97.5%". */
-export function percentLevel(level: number): string {
+function percentLevel(level: number): string {
   return `${Number((100 * level).toFixed(1))}%`;
 }
 

@@ -5,7 +5,7 @@ import type { ReplicateKind, ReplicateRow, ReplicateStatus } from './replicate-r
  * Numbers are written with JavaScript's shortest round-trip form, so reading gives back the exact
  * doubles; NaN is an empty cell, infinities are "Inf" / "-Inf".
  */
-export const REPLICATE_COLUMNS = [
+const REPLICATE_COLUMNS = [
   'scenario', 'variant', 'replicate', 'parameter', 'kind', 'truth', 'estimate', 'se', 'lower', 'upper', 'df', 'status', 'reason',
 ] as const;
 

@@ -28,9 +28,9 @@ export interface ReplicateRow {
   reason: string;
 }
 
-export const REPLICATE_KINDS: readonly ReplicateKind[] = ['fixed', 'sd', 'correlation'];
+const REPLICATE_KINDS: readonly ReplicateKind[] = ['fixed', 'sd', 'correlation'];
 
-export const REPLICATE_STATUSES: readonly ReplicateStatus[] = [
+const REPLICATE_STATUSES: readonly ReplicateStatus[] = [
   'ok',
   'singular',
   'nonconverged',

@@ -172,7 +172,7 @@ function pushRows(
 }
 
 /** Name of the correlation parameter of two random terms of a factor ("cor(site:intercept,x)"). */
-export function correlationParameterName(factor: string, a: string, b: string): string {
+function correlationParameterName(factor: string, a: string, b: string): string {
   return `cor(${factor}:${a},${b})`;
 }
 

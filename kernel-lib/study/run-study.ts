@@ -77,7 +77,7 @@ function workerPath(): string {
 }
 
 /** Resolve the design with an optional replicate override. */
-export function resolveStudyDesign(input: unknown, replicates?: number): { design: SurveyDesign; source: unknown } {
+function resolveStudyDesign(input: unknown, replicates?: number): { design: SurveyDesign; source: unknown } {
   let source = typeof input === 'string' ? JSON.parse(input) : input;
   if (replicates !== undefined) {
     if (!(Number.isInteger(replicates) && replicates >= 1)) {
@@ -93,7 +93,7 @@ export function resolveStudyDesign(input: unknown, replicates?: number): { desig
  * fitted to the simulated data at all stops the study here; coefficients it cannot estimate are
  * named in a warning and studied as 'aliased'.
  */
-export function preflight(runner: ReplicateRunner, tries = 5): string[] {
+function preflight(runner: ReplicateRunner, tries = 5): string[] {
   const warnings: string[] = [];
   runner.scenarios.forEach((scenario, s) => {
     const rows = runner.runBatch(s, 0, Math.min(tries, runner.design.replicates));

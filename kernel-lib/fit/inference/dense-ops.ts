@@ -61,9 +61,3 @@ export function sandwich(l: ArrayLike<number>, a: ArrayLike<number>, r: number, 
   return out;
 }
 
-/** Trace of the product of two n×n matrices, tr(A B). */
-export function traceOfProduct(a: ArrayLike<number>, b: ArrayLike<number>, n: number): number {
-  let s = 0;
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) s += a[i * n + j] * b[j * n + i];
-  return s;
-}

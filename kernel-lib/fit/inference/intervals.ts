@@ -41,7 +41,7 @@ export interface IntervalOutcome {
 }
 
 /** Why a method cannot be used for this fit ('' when it can): Kenward-Roger needs REML and a moderate size. */
-export function methodProblem(method: SmallSampleMethod, ctx: InferenceContext): string {
+function methodProblem(method: SmallSampleMethod, ctx: InferenceContext): string {
   if (method === 'kenward-roger') {
     if (ctx.estimation === 'ML') {
       return 'model.interval: "kenward-roger" is defined for REML fits only, but model.estimation is "ML"; use estimation "REML" or interval "satterthwaite"';

@@ -42,7 +42,7 @@ export interface MixedModelSpace {
 }
 
 /** C = [Z X]ᵀ[Z X] with Z columns in the engine's order (term by term, level by level, effect by effect). */
-export function crossProductOfZX(design: DesignMatrices, dev: ProfiledDeviance): Float64Array {
+function crossProductOfZX(design: DesignMatrices, dev: ProfiledDeviance): Float64Array {
   const { n, p, X } = design;
   const q = dev.q;
   const dim = q + p;

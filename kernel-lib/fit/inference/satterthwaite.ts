@@ -20,7 +20,7 @@ import { thetaFromPsi, unprofiledDeviance, varianceParameters, type VariancePara
 import { inverseSpd, quadraticForm } from './dense-ops';
 
 /** Relative finite-difference step, shrunk tenfold (twice at most) when a point leaves the parameter space. */
-export const FD_STEP = 1e-3;
+const FD_STEP = 1e-3;
 
 export interface SatterthwaiteCore {
   p: number;

@@ -5,16 +5,16 @@
 import { fail } from './checks';
 
 /** Levels of one factor (nested levels counted through their outer factors). */
-export const MAX_LEVELS = 1_000_000;
+const MAX_LEVELS = 1_000_000;
 /** Rows of one simulated data set. */
-export const MAX_ROWS = 10_000_000;
+const MAX_ROWS = 10_000_000;
 
 /** Rough bytes per level (its label and index entries) and per row (level indices, columns, model matrices). */
 const BYTES_PER_LEVEL = 64;
 const bytesPerRow = (factors: number) => 4 * factors + 8 * (factors + 6);
 
 /** "48 GB", "310 MB": a size for a message. */
-export function formatBytes(bytes: number): string {
+function formatBytes(bytes: number): string {
   const units = ['bytes', 'kB', 'MB', 'GB', 'TB', 'PB'];
   let v = bytes;
   let u = 0;

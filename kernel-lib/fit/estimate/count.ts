@@ -12,7 +12,7 @@ import type { CountFamily } from './glm-response';
 import type { Estimate, EstimateStep, TermCovariance } from './types';
 
 /** Pearson χ²/df above this is reported as overdispersion (a rule of thumb: common practice, no source). */
-export const OVERDISPERSION_WARNING = 1.5;
+const OVERDISPERSION_WARNING = 1.5;
 
 export function countEstimateStep(family: CountFamily): EstimateStep {
   return (design: DesignMatrices, options): Estimate => {

@@ -77,7 +77,7 @@ function workerPath(): string {
 }
 
 /** Resolve the design with an optional replicate override. */
-function resolveStudyDesign(input: unknown, replicates?: number): { design: SurveyDesign; source: unknown } {
+export function resolveStudyDesign(input: unknown, replicates?: number): { design: SurveyDesign; source: unknown } {
   let source = typeof input === 'string' ? JSON.parse(input) : input;
   if (replicates !== undefined) {
     if (!(Number.isInteger(replicates) && replicates >= 1)) {

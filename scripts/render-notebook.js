@@ -6,7 +6,8 @@
  *   node scripts/render-notebook.js notebooks/<name>.ipynb [--out <folder>] [--verbose]
  *
  * Steps: register the kernel (scripts/register-kernel.js), run Debian's nbconvert
- * (`/usr/bin/python3 -m nbconvert --to html --execute`, kernel quadrat-ts, 600 s per cell) with
+ * (`/usr/bin/python3 -m nbconvert --to html --execute`, kernel quadrat-ts, 600 s per cell unless
+ * --cell-timeout or QUADRAT_CELL_TIMEOUT says otherwise) with
  * JUPYTER_PATH pointing at notebooks/.kernel, then strip the two <script src> tags nbconvert
  * adds (require.js and MathJax from /usr/share/javascript), which a reader elsewhere would not
  * have. LaTeX in Markdown cells therefore stays as source text. QUADRAT_HTML_RENDER=1 is set so
@@ -17,6 +18,11 @@
  * says only "<Error>:"; a small nbclient hook (on_cell_error, loaded with --config) prints the
  * failing cell's outputs as one JSON line, which is parsed here. Another hook copies the
  * execution count from tslab's reply, so the HTML shows "In [1]:" rather than "In [ ]:".
+ *
+ * A render always ends: hooks report each cell's start and end, a cell past its timeout gets
+ * the process group stopped with a message naming the notebook and the cell, and the kernel is
+ * stopped outright after the last cell (shutdown_kernel "immediate"); if nbconvert has still not
+ * ended --shutdown-wait seconds (default 60) after the last cell, it is stopped, saying so.
  *
  * Environment: QUADRAT_PYTHON overrides /usr/bin/python3 (the Python that has nbconvert).
  */
@@ -29,6 +35,9 @@ const { registerKernel } = require('./register-kernel');
 const INSTALL_HINT = 'apt-get install jupyter-nbconvert python3-nbclient python3-ipykernel';
 const HOOK_MARKER = 'QUADRAT_CELL_ERROR ';
 const CELL_TIMEOUT_S = 600;
+/** After the last cell, how long the kernel may take to shut down before it is stopped. */
+const SHUTDOWN_WAIT_S = 60;
+const PROGRESS_MARKER = 'QUADRAT_PROGRESS ';
 
 const HOOK_CONFIG = `
 import json, sys
@@ -48,22 +57,45 @@ def _quadrat_report_cell_error(cell, cell_index, execute_reply, **kwargs):
     sys.stderr.write(${JSON.stringify(HOOK_MARKER)} + json.dumps(record) + '\\n')
     sys.stderr.flush()
 
+def _quadrat_progress(event, index=-1):
+    sys.stderr.write(${JSON.stringify(PROGRESS_MARKER)} + json.dumps({'event': event, 'index': index}) + '\\n')
+    sys.stderr.flush()
+
+def _quadrat_cell_start(cell, cell_index, **kwargs):
+    _quadrat_progress('start', cell_index)
+
 def _quadrat_keep_execution_count(cell, cell_index, execute_reply, **kwargs):
     # tslab sends no execute_input message, from which nbclient takes the count; the reply has it.
     content = execute_reply.get('content', {}) if isinstance(execute_reply, dict) else {}
     if cell.get('execution_count') is None and content.get('execution_count') is not None:
         cell['execution_count'] = content['execution_count']
+    _quadrat_progress('done', cell_index)
+
+def _quadrat_notebook_complete(**kwargs):
+    _quadrat_progress('complete')
 
 c.ExecutePreprocessor.on_cell_error = _quadrat_report_cell_error
+c.ExecutePreprocessor.on_cell_start = _quadrat_cell_start
 c.ExecutePreprocessor.on_cell_executed = _quadrat_keep_execution_count
+c.ExecutePreprocessor.on_notebook_complete = _quadrat_notebook_complete
+# stop the kernel process at the end instead of asking it to shut down and waiting for an answer
+c.ExecutePreprocessor.shutdown_kernel = 'immediate'
 `;
 
 function usage() {
-  return 'usage: node scripts/render-notebook.js <notebook.ipynb> [--out <folder>] [--verbose]';
+  return 'usage: node scripts/render-notebook.js <notebook.ipynb> [--out <folder>] [--cell-timeout <s>] [--shutdown-wait <s>] [--verbose]';
 }
 
 function parseArgs(argv) {
-  const args = { notebook: null, out: 'out', verbose: false };
+  const args = {
+    notebook: null, out: 'out', verbose: false,
+    cellTimeout: Number(process.env.QUADRAT_CELL_TIMEOUT || CELL_TIMEOUT_S), shutdownWait: SHUTDOWN_WAIT_S,
+  };
+  const seconds = (name, text) => {
+    const v = Number(text);
+    if (!(v > 0 && Number.isFinite(v))) throw new Error(`${name}: expected a number of seconds > 0, got "${text}"`);
+    return v;
+  };
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a === '--out') {
@@ -71,6 +103,8 @@ function parseArgs(argv) {
       args.out = argv[++i];
     } else if (a.startsWith('--out=')) args.out = a.slice(6);
     else if (a === '--verbose') args.verbose = true;
+    else if (a === '--cell-timeout') args.cellTimeout = seconds(a, argv[++i]);
+    else if (a === '--shutdown-wait') args.shutdownWait = seconds(a, argv[++i]);
     else if (a === '--help' || a === '-h') args.help = true;
     else if (a.startsWith('-')) throw new Error(`unknown option ${a}`);
     else if (args.notebook === null) args.notebook = a;
@@ -197,11 +231,40 @@ function stripExternalResources(html) {
   return { html: out, removed };
 }
 
-function runNbconvert(python, args, env, verbose) {
+/**
+ * Run nbconvert and watch it: progress lines from the hooks say which cell runs. A cell running
+ * past its timeout (nbclient's own limit plus a margin) or a kernel that has not shut down
+ * `shutdownWait` seconds after the last cell gets the whole process group stopped, so that a
+ * render always ends; `stopped` then says which.
+ */
+function runNbconvert(python, args, env, verbose, limits = { cellTimeout: CELL_TIMEOUT_S, shutdownWait: SHUTDOWN_WAIT_S, lastCell: -1 }) {
   return new Promise((resolve) => {
-    const child = spawn(python, args, { env, stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(python, args, { env, stdio: ['ignore', 'pipe', 'pipe'], detached: true });
     let stdout = '';
     let stderr = '';
+    let pending = '';
+    const state = { cell: -1, cellStarted: 0, finishedAt: 0, stopped: null };
+    const stopGroup = () => {
+      try {
+        process.kill(-child.pid, 'SIGKILL');
+      } catch {
+        /* already gone */
+      }
+    };
+    const onExit = () => stopGroup();
+    process.once('exit', onExit);
+    const watch = setInterval(() => {
+      const now = Date.now();
+      if (state.finishedAt === 0 && state.cell >= 0 && now - state.cellStarted > (limits.cellTimeout + 30) * 1000) {
+        state.stopped = { kind: 'cell', index: state.cell };
+      } else if (state.finishedAt > 0 && now - state.finishedAt > limits.shutdownWait * 1000) {
+        state.stopped = { kind: 'shutdown' };
+      }
+      if (state.stopped) {
+        clearInterval(watch);
+        stopGroup();
+      }
+    }, 500);
     child.stdout.on('data', (d) => {
       stdout += d;
       if (verbose) process.stdout.write(d);
@@ -209,9 +272,36 @@ function runNbconvert(python, args, env, verbose) {
     child.stderr.on('data', (d) => {
       stderr += d;
       if (verbose) process.stderr.write(d);
+      pending += d;
+      let nl;
+      while ((nl = pending.indexOf('\n')) >= 0) {
+        const line = pending.slice(0, nl);
+        pending = pending.slice(nl + 1);
+        if (!line.startsWith(PROGRESS_MARKER)) continue;
+        let p;
+        try {
+          p = JSON.parse(line.slice(PROGRESS_MARKER.length));
+        } catch {
+          continue;
+        }
+        if (p.event === 'start') {
+          state.cell = p.index;
+          state.cellStarted = Date.now();
+        } else if (p.event === 'complete' || (p.event === 'done' && p.index === limits.lastCell)) {
+          if (state.finishedAt === 0) state.finishedAt = Date.now();
+        }
+      }
     });
-    child.on('error', (err) => resolve({ status: null, stdout, stderr: stderr + String(err) }));
-    child.on('close', (status) => resolve({ status, stdout, stderr }));
+    const finish = (status) => {
+      clearInterval(watch);
+      process.removeListener('exit', onExit);
+      resolve({ status, stdout, stderr, stopped: state.stopped, cell: state.cell });
+    };
+    child.on('error', (err) => {
+      stderr += String(err);
+      finish(null);
+    });
+    child.on('close', (status) => finish(status));
   });
 }
 
@@ -249,12 +339,27 @@ async function renderNotebook(options) {
       '--to', 'html',
       '--execute',
       `--ExecutePreprocessor.kernel_name=${kernel.kernelName}`,
-      `--ExecutePreprocessor.timeout=${CELL_TIMEOUT_S}`,
+      `--ExecutePreprocessor.timeout=${Math.ceil(options.cellTimeout || CELL_TIMEOUT_S)}`,
       `--config=${hookFile}`,
       '--output-dir', outDir,
       notebook,
     ];
-    const run = await runNbconvert(python, args, env, options.verbose);
+    const cells = JSON.parse(fs.readFileSync(notebook, 'utf8')).cells || [];
+    let lastCell = -1;
+    cells.forEach((c, i) => { if (c.cell_type === 'code') lastCell = i; });
+    const cellTimeout = options.cellTimeout || CELL_TIMEOUT_S;
+    const shutdownWait = options.shutdownWait || SHUTDOWN_WAIT_S;
+    const run = await runNbconvert(python, args, env, options.verbose, { cellTimeout, shutdownWait, lastCell });
+    const name = path.basename(notebook);
+    const cellText = (i) => (i >= 0 && cells[i] ? firstLine([].concat(cells[i].source).join('')) : '');
+    if (run.stopped && run.stopped.kind === 'shutdown') {
+      throw Object.assign(new Error(`${name}: every cell ran, but the kernel did not shut down within ${shutdownWait} s; it was stopped and no HTML was written (run again; --shutdown-wait sets the wait)`), { exitCode: 1 });
+    }
+    const timedOut = (run.stopped && run.stopped.kind === 'cell') || /CellTimeoutError|Cell execution timed out/.test(run.stderr);
+    if (run.status !== 0 && timedOut) {
+      const index = run.stopped ? run.stopped.index : run.cell;
+      throw Object.assign(new Error(`${name}: cell ${index + 1} did not finish within ${cellTimeout} s and was stopped (--cell-timeout sets the limit)\n  cell starts: ${cellText(index)}`), { exitCode: 1 });
+    }
     if (run.status !== 0) {
       const failure = findCellFailure(run.stderr);
       if (failure) {

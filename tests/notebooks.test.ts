@@ -43,12 +43,13 @@ function readNotebook(file: string): Notebook {
 const text = (cell: Cell) => (Array.isArray(cell.source) ? cell.source.join('') : cell.source);
 
 describe('committed notebooks', () => {
-  it('are the four templates', () => {
+  it('are the five templates', () => {
     expect(notebookFiles).toEqual([
       '01-describe-survey.ipynb',
       '02-one-dataset-both-ways.ipynb',
       '03-coverage-study.ipynb',
       '04-analyse-survey.ipynb',
+      '05-count-survey.ipynb',
     ]);
   });
 

@@ -1,6 +1,6 @@
 /** The render's limits (scripts/render-notebook.js): a cell timeout and a bounded wait for the kernel's shutdown. */
 import { describe, expect, it } from 'vitest';
-// eslint-disable-next-line @typescript-eslint/no-var-requires
+ 
 const { parseArgs } = require('../scripts/render-notebook.js') as { parseArgs: (a: string[]) => Record<string, unknown> };
 
 describe('render limits', () => {

@@ -30,7 +30,7 @@ import type { ProfiledDeviance } from '../profiled-deviance';
 export type Integration = 'laplace' | 'quadrature';
 
 /** θ (a random-effect SD on the link scale) below this counts as on the boundary (common practice, no source). */
-export const COUNT_BOUNDARY_TOLERANCE = 1e-4;
+const COUNT_BOUNDARY_TOLERANCE = 1e-4;
 /** Largest random-effect SD searched on the link scale (e^20 between groups is far beyond any survey). */
 const THETA_MAX = 20;
 /** Range searched for log k. */

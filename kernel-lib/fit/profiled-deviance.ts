@@ -1,6 +1,7 @@
 import type { DesignMatrices, RandomTerm } from '../data/design-matrices';
 import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace, logDiagonalSum } from '../numeric/dense';
 import { Float64Arena } from '../numeric/arena';
+import { aliasingFromCrossProducts, restrictColumns, type AliasReport } from './aliasing';
 
 /**
  * Profiled REML/ML deviance of a linear mixed model through penalised least squares
@@ -27,6 +28,14 @@ export interface TermLayout {
   /** Number of θ entries: k(k+1)/2 when correlated, else k. */
   thetaCount: number;
 }
+
+function samePriority(a: number[] | undefined, b: number[] | undefined): boolean {
+  if (a === undefined || b === undefined) return a === b;
+  return a.length === b.length && a.every((v, i) => v === b[i]);
+}
+
+/** Engines kept per design object, [ML, REML]; dropped with the design. */
+const engines = new WeakMap<DesignMatrices, [ProfiledDeviance | null, ProfiledDeviance | null]>();
 
 export class ProfiledDeviance {
   readonly n: number;
@@ -61,6 +70,12 @@ export class ProfiledDeviance {
   readonly m: Float64Array; // w × w
   private readonly block: Float64Array;
   private design: DesignMatrices;
+  /** The design this engine was built for (setResponse swaps `design` for a copy with another y). */
+  private readonly source: DesignMatrices;
+  /** Held by a fit (acquire … release); a busy engine is never handed out again. */
+  inUse = false;
+  /** Counts the fits that took this engine, so a fit's later work can tell whether another fit came between. */
+  generation = 0;
   /** The last evaluation failed a factorisation (reported, not thrown). */
   lastFailure = '';
   /** Every term has one column (random intercepts only): Λ is diagonal. */
@@ -75,9 +90,16 @@ export class ProfiledDeviance {
    */
   private nzStart: Int32Array = new Int32Array(1);
   private nzCols: Int32Array = new Int32Array(0);
+  private estimable: { priority: number[] | undefined; alias: AliasReport; reduced: DesignMatrices } | null = null;
+  /** Output buffers of randomEffects and inverseDiagonalBlocks, made on first use. */
+  private effects: { u: Float64Array; b: Float64Array } | null = null;
+  private inverse: {
+    out: Float64Array[]; w11: Float64Array; col: Float64Array; w21: Float64Array; colq: Float64Array; w22: Float64Array; e: Float64Array;
+  } | null = null;
 
   constructor(design: DesignMatrices, reml: boolean) {
     this.design = design;
+    this.source = design;
     this.reml = reml;
     this.n = design.n;
     this.p = design.p;
@@ -158,6 +180,62 @@ export class ProfiledDeviance {
     if (y.length !== this.n) throw new RangeError(`response has ${y.length} values, the design has ${this.n} observations`);
     this.design = { ...this.design, y };
     this.buildResponseProducts(true);
+  }
+
+  /**
+   * Start a new fit of the design this engine was built for: read its current y again (the caller
+   * may have replaced the response values) and clear the failure note. The design-only products stay.
+   */
+  private refreshForNewFit(): void {
+    this.design = this.source;
+    this.lastFailure = '';
+    this.buildResponseProducts(true);
+  }
+
+  /**
+   * An engine for `design`, reusing the one kept for that design object when it is free: the
+   * cross-products of X and Z, the sparsity pattern and every workspace are built once per design,
+   * and a fit only refreshes the response column. A design's X and random terms are therefore taken
+   * as fixed once fitted (DesignMatrices: in a study only y changes). Hand it back with release().
+   */
+  static acquire(design: DesignMatrices, reml: boolean): ProfiledDeviance {
+    let kept = engines.get(design);
+    if (!kept) { kept = [null, null]; engines.set(design, kept); }
+    const slot = reml ? 1 : 0;
+    const dev = kept[slot];
+    if (dev && !dev.inUse && dev.n === design.y.length) {
+      dev.refreshForNewFit();
+      dev.inUse = true;
+      dev.generation++;
+      return dev;
+    }
+    const fresh = new ProfiledDeviance(design, reml);
+    // a busy engine (a fit inside a fit of the same design) stays kept; the fresh one is used once
+    if (!dev || !dev.inUse) kept[slot] = fresh;
+    fresh.inUse = true;
+    return fresh;
+  }
+
+  /**
+   * Estimable columns of X (visited in `priority` order) and the design restricted to them. Both
+   * depend on X only, so an engine kept for its design computes them once per priority order.
+   */
+  estimableColumns(priority?: number[]): { alias: AliasReport; reduced: DesignMatrices } {
+    const kept = this.estimable;
+    if (kept && samePriority(kept.priority, priority)) {
+      // the restricted copy follows the design's current response
+      if (kept.reduced !== this.source && kept.reduced.y !== this.source.y) kept.reduced.y = this.source.y;
+      return kept;
+    }
+    const alias = aliasingFromCrossProducts(this.xyxy, this.p, this.w, priority);
+    const reduced = restrictColumns(this.source, alias.estimable);
+    this.estimable = { priority: priority ? priority.slice() : undefined, alias, reduced };
+    return this.estimable;
+  }
+
+  /** Hand an engine from acquire() back, so the next fit of its design can reuse it. */
+  release(): void {
+    this.inUse = false;
   }
 
   /** [X y]ᵀ[X y] (w×w, row-major, full); its leading p×p block is XᵀX. */
@@ -651,10 +729,17 @@ export class ProfiledDeviance {
     return out;
   }
 
-  /** Spherical random effects u = L⁻ᵀ(cu − RZX β) and b = Λu, in the engine's term order. */
+  /**
+   * Spherical random effects u = L⁻ᵀ(cu − RZX β) and b = Λu, in the engine's term order. Written
+   * to buffers the engine keeps, so they are overwritten by the next call: copy what must outlive it.
+   */
   randomEffects(beta: Float64Array): { u: Float64Array; b: Float64Array } {
     const { q, q1, q2, k1, m1, w, p } = this;
-    const u = new Float64Array(q);
+    if (!this.effects) {
+      const buffer = new Float64Array(2 * q);
+      this.effects = { u: buffer.subarray(0, q), b: buffer.subarray(q) };
+    }
+    const { u, b } = this.effects;
     for (let c = 0; c < q; c++) {
       let s = this.r[c * w + p];
       for (let a = 0; a < p; a++) s -= this.r[c * w + a] * beta[a];
@@ -669,7 +754,6 @@ export class ProfiledDeviance {
       }
     }
     for (let l = 0; l < m1; l++) backSolveTransposeInPlace(this.l11, k1, u, k1, l * k1 * k1, l * k1);
-    const b = new Float64Array(q);
     for (let s = 0; s < this.terms.length; s++) {
       const t = this.terms[s];
       const T = this.templates[s];
@@ -682,21 +766,23 @@ export class ProfiledDeviance {
         }
       }
     }
-    return { u, b };
+    return this.effects;
   }
 
   /**
    * Diagonal k×k blocks of (ΛᵀZᵀZΛ + I)⁻¹ per term and level, via W = L⁻¹ in block form
    * (W11 = L11⁻¹, W21 = −L22⁻¹ L21 L11⁻¹, W22 = L22⁻¹; A⁻¹ = WᵀW).
-   * Returned in term order: blocks[s][l*k*k + a*k + b].
+   * Returned in term order: blocks[s][l*k*k + a*k + b], in buffers the engine keeps (overwritten by the
+   * next call).
    */
   inverseDiagonalBlocks(): Float64Array[] {
     const { q1, q2, k1, m1, terms } = this;
-    const out = terms.map((t) => new Float64Array(t.m * t.k * t.k));
+    const ws = this.inverseWorkspace();
+    const out = ws.out;
     if (!terms.length) return out;
     // W11 per level
-    const w11 = new Float64Array(m1 * k1 * k1);
-    const col = new Float64Array(k1);
+    const w11 = ws.w11;
+    const col = ws.col;
     for (let l = 0; l < m1; l++) {
       for (let j = 0; j < k1; j++) {
         col.fill(0, 0, k1);
@@ -708,7 +794,7 @@ export class ProfiledDeviance {
     let w21: Float64Array | null = null;
     if (q2 > 0) {
       // C = L21 W11 (q2 × q1), then W21 = −L22⁻¹ C column by column
-      w21 = new Float64Array(q2 * q1);
+      w21 = ws.w21;
       for (let r = 0; r < q2; r++) {
         for (let l = 0; l < m1; l++) {
           for (let j = 0; j < k1; j++) {
@@ -718,7 +804,7 @@ export class ProfiledDeviance {
           }
         }
       }
-      const colq = new Float64Array(q2);
+      const colq = ws.colq;
       for (let c = 0; c < q1; c++) {
         for (let r = 0; r < q2; r++) colq[r] = w21[r * q1 + c];
         forwardSolveInPlace(this.l22, q2, colq, q2);
@@ -738,8 +824,8 @@ export class ProfiledDeviance {
     }
     if (q2 > 0) {
       // W22ᵀW22 restricted to diagonal blocks: columns of W22 = L22⁻¹
-      const w22 = new Float64Array(q2 * q2);
-      const e = new Float64Array(q2);
+      const w22 = ws.w22;
+      const e = ws.e;
       for (let j = 0; j < q2; j++) {
         e.fill(0);
         e[j] = 1;
@@ -761,5 +847,18 @@ export class ProfiledDeviance {
       }
     }
     return out;
+  }
+
+  /** Buffers of inverseDiagonalBlocks, carved from one allocation the first time they are needed. */
+  private inverseWorkspace(): NonNullable<ProfiledDeviance['inverse']> {
+    if (this.inverse) return this.inverse;
+    const { q1, q2, k1, m1, terms } = this;
+    const arena = new Float64Arena(terms.reduce((a, t) => a + t.m * t.k * t.k, 0) + m1 * k1 * k1 + k1 + q2 * q1 + q2 + 2 * q2 * q2 + q2);
+    this.inverse = {
+      out: terms.map((t) => arena.take(t.m * t.k * t.k)),
+      w11: arena.take(m1 * k1 * k1), col: arena.take(k1), w21: arena.take(q2 * q1), colq: arena.take(q2),
+      w22: arena.take(q2 * q2), e: arena.take(q2),
+    };
+    return this.inverse;
   }
 }

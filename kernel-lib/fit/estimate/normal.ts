@@ -5,7 +5,6 @@
  */
 import type { DesignMatrices } from '../../data/design-matrices';
 import type { ConditionalModeRow } from '../result';
-import { aliasingFromCrossProducts, restrictColumns } from '../aliasing';
 import { aliasReasons } from '../alias-reasons';
 import { degenerateReason } from '../degenerate';
 import { ProfiledDeviance } from '../profiled-deviance';
@@ -25,11 +24,15 @@ export function estimateNormal(design: DesignMatrices, options: EstimateOptions)
       betaCov: new Float64Array(0), dispersion: undefined, terms: [], modes: [], fitted: new Float64Array(0),
     };
   }
-  let dev = new ProfiledDeviance(design, estimation === 'REML');
-  const alias = aliasingFromCrossProducts(dev.crossProducts(), design.p, design.p + 1, options.priority);
+  // the engine kept for this design object: X and Z products, estimable columns and workspaces are reused
+  const reml = estimation === 'REML';
+  let dev = ProfiledDeviance.acquire(design, reml);
+  const { alias, reduced } = dev.estimableColumns(options.priority);
   const reasons = aliasReasons(design, dev.crossProducts(), design.p + 1, alias.estimable, alias.aliased);
-  const reduced = restrictColumns(design, alias.estimable);
-  if (reduced !== design) dev = new ProfiledDeviance(reduced, estimation === 'REML');
+  if (reduced !== design) {
+    dev.release();
+    dev = ProfiledDeviance.acquire(reduced, reml);
+  }
   const { n, p } = reduced;
 
   let theta = new Float64Array(0);
@@ -54,6 +57,7 @@ export function estimateNormal(design: DesignMatrices, options: EstimateOptions)
   if (!ok) {
     const why = dev.lastFailure || 'the criterion could not be evaluated';
     if (!warnings.some((w) => w.includes(why))) warnings.push(`fit failed: ${why}`);
+    dev.release();
     return {
       ...base, failure: why, converged: false, deviance: NaN, logLik: NaN, beta: new Float64Array(0), betaCov: new Float64Array(0),
       dispersion: undefined, terms: [], modes: [], fitted: new Float64Array(0),
@@ -65,10 +69,23 @@ export function estimateNormal(design: DesignMatrices, options: EstimateOptions)
   const beta = dev.beta();
   const betaCov = dev.unscaledFixedCovariance();
   for (let a = 0; a < p * p; a++) betaCov[a] = sigma2 * betaCov[a];
+  const generation = dev.generation;
   const smallSample: Estimate['smallSample'] = ols
     ? undefined
-    : (method, level, bootstrap) =>
-        smallSampleIntervals({ design: reduced, dev, estimation: estimation as 'REML' | 'ML', theta, sigma2, beta, columns: alias.estimable }, method, level, bootstrap);
+    : (method, level, bootstrap) => {
+        // the summarise step calls this after the engine went back: use it only if no other fit took it since
+        let engine = dev;
+        if (engine.inUse || engine.generation !== generation) {
+          engine = new ProfiledDeviance(reduced, reml);
+          engine.factor(theta);
+        }
+        engine.inUse = true;
+        try {
+          return smallSampleIntervals({ design: reduced, dev: engine, estimation: estimation as 'REML' | 'ML', theta, sigma2, beta, columns: alias.estimable }, method, level, bootstrap);
+        } finally {
+          engine.inUse = false;
+        }
+      };
 
   let modes: ConditionalModeRow[] = [];
   let fitted = new Float64Array(0);
@@ -91,9 +108,10 @@ export function estimateNormal(design: DesignMatrices, options: EstimateOptions)
     fitted = linearPredictor(reduced, beta);
   }
 
+  const terms = termCovariances(dev, design, sigma2);
+  dev.release();
   return {
-    ...base, failure: '', converged, deviance, logLik: -deviance / 2, beta, betaCov, dispersion: sigma2,
-    terms: termCovariances(dev, design, sigma2), modes, fitted, smallSample,
+    ...base, failure: '', converged, deviance, logLik: -deviance / 2, beta, betaCov, dispersion: sigma2, terms, modes, fitted, smallSample,
   };
 }
 

@@ -41,8 +41,22 @@ export interface MixedModelSpace {
   hc: Float64Array;
 }
 
-/** C = [Z X]ᵀ[Z X] with Z columns in the engine's order (term by term, level by level, effect by effect). */
+/** C per design object: it depends on X and Z only, which a design keeps once fitted (see ProfiledDeviance.acquire). */
+const crossProducts = new WeakMap<DesignMatrices, Float64Array>();
+
+/**
+ * C = [Z X]ᵀ[Z X] with Z columns in the engine's order (term by term, level by level, effect by effect).
+ * Built once per design object and shared: callers must not write to it.
+ */
 function crossProductOfZX(design: DesignMatrices, dev: ProfiledDeviance): Float64Array {
+  const kept = crossProducts.get(design);
+  if (kept && kept.length === (dev.q + design.p) ** 2) return kept;
+  const c = buildCrossProductOfZX(design, dev);
+  crossProducts.set(design, c);
+  return c;
+}
+
+function buildCrossProductOfZX(design: DesignMatrices, dev: ProfiledDeviance): Float64Array {
   const { n, p, X } = design;
   const q = dev.q;
   const dim = q + p;
@@ -119,9 +133,33 @@ function lambdaTimes(a: Float64Array, cols: number, dev: ProfiledDeviance): void
   }
 }
 
+/** The (q+p)-space buffers of one design, kept with it (several (q+p)² arrays: allocating them per call dominated). */
+interface SpaceBuffers {
+  s: Float64Array; a: Float64Array; scratch: Float64Array; k: Float64Array; j: Float64Array; jx: Float64Array;
+  cs: Float64Array; b0: Float64Array; b: Float64Array; hc: Float64Array; ju: Float64Array; ku: Float64Array;
+}
+
+const buffers = new WeakMap<DesignMatrices, SpaceBuffers>();
+
+function buffersFor(design: DesignMatrices, q: number, p: number, severalTerms: boolean): SpaceBuffers {
+  const dim = q + p;
+  const kept = buffers.get(design);
+  if (kept && kept.b0.length === dim * dim && kept.s.length === q * q && kept.k.length === dim * p && kept.a.length === (severalTerms ? q * q : 0)) return kept;
+  // the dense A and its scratch only when several terms make S dense
+  const dense = severalTerms ? q * q : 0;
+  const made: SpaceBuffers = {
+    s: new Float64Array(q * q), a: new Float64Array(dense), scratch: new Float64Array(dense), k: new Float64Array(dim * p),
+    j: new Float64Array(dim * p), jx: new Float64Array(p * p), cs: new Float64Array(dim * q), b0: new Float64Array(dim * dim),
+    b: new Float64Array(dim * dim), hc: new Float64Array(dim * dim), ju: new Float64Array(dim * p), ku: new Float64Array(dim * p),
+  };
+  buffers.set(design, made);
+  return made;
+}
+
 /**
  * The (q+p)-space quantities at θ and σ². `c` may be passed in when already built.
- * Returns null when XᵀV⁻¹X is not positive definite.
+ * Returns null when XᵀV⁻¹X is not positive definite. The arrays returned are kept with the design and
+ * overwritten by the next call for it: copy what must outlive the caller's computation.
  */
 export function mixedModelSpace(
   design: DesignMatrices, dev: ProfiledDeviance, theta: ArrayLike<number>, sigma2: number, c = crossProductOfZX(design, dev),
@@ -130,12 +168,14 @@ export function mixedModelSpace(
   const q = dev.q;
   const dim = q + p;
   dev.setTheta(theta);
+  const ws = buffersFor(design, q, p, dev.terms.length > 1);
   // A = ΛᵀC_ZZΛ + I, then S = Λ A⁻¹ Λᵀ
-  const s = new Float64Array(q * q);
+  const s = ws.s;
+  s.fill(0);
   if (dev.terms.length === 1) {
     blockDiagonalS(c, dim, dev, s);
   } else if (q > 0) {
-    const a = new Float64Array(q * q);
+    const a = ws.a;
     for (let r = 0; r < q; r++) for (let col = 0; col < q; col++) a[r * q + col] = c[r * dim + col];
     timesLambda(a, q, q, dev); // C_ZZ Λ
     // Λᵀ (C_ZZ Λ) = ((C_ZZ Λ)ᵀ Λ)ᵀ; C_ZZΛ's transpose is ΛᵀC_ZZ, so transpose, right-multiply, transpose back
@@ -145,7 +185,7 @@ export function mixedModelSpace(
     for (let r = 0; r < q; r++) a[r * q + r] += 1;
     symmetrise(a, q);
     if (choleskyInPlace(a, q) >= 0) return null;
-    inverseFromCholesky(a, q, s);
+    inverseFromCholesky(a, q, s, ws.scratch);
     // S = Λ A⁻¹ Λᵀ = Λ (Λ A⁻¹)ᵀ
     lambdaTimes(s, q, dev);
     transposeInPlace(s, q);
@@ -153,7 +193,8 @@ export function mixedModelSpace(
     symmetrise(s, q);
   }
   // K = [−S C_ZX; I]
-  const k = new Float64Array(dim * p);
+  const k = ws.k;
+  k.fill(0);
   for (let r = 0; r < q; r++) {
     for (let b = 0; b < p; b++) {
       let sum = 0;
@@ -163,7 +204,8 @@ export function mixedModelSpace(
   }
   for (let b = 0; b < p; b++) k[(q + b) * p + b] = 1;
   // J = C K
-  const j = new Float64Array(dim * p);
+  const j = ws.j;
+  j.fill(0);
   for (let r = 0; r < dim; r++) {
     const rc = r * dim;
     for (let col = 0; col < dim; col++) {
@@ -172,12 +214,13 @@ export function mixedModelSpace(
       for (let b = 0; b < p; b++) j[r * p + b] += crc * k[col * p + b];
     }
   }
-  const jx = new Float64Array(p * p);
+  const jx = ws.jx;
   for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) jx[a * p + b] = 0.5 * (j[(q + a) * p + b] + j[(q + b) * p + a]);
   const u = inverseSpd(jx, p);
   if (!u) return null;
   // CS = C_{:,Z} S (D×q); B0 = C − CS C_{Z,:}
-  const cs = new Float64Array(dim * q);
+  const cs = ws.cs;
+  cs.fill(0);
   for (let r = 0; r < dim; r++) {
     for (let col = 0; col < q; col++) {
       const crc = c[r * dim + col];
@@ -187,7 +230,8 @@ export function mixedModelSpace(
       for (let x = 0; x < q; x++) cs[out + x] += crc * s[sr + x];
     }
   }
-  const b0 = Float64Array.from(c);
+  const b0 = ws.b0;
+  b0.set(c);
   for (let r = 0; r < dim; r++) {
     const out = r * dim;
     for (let col = 0; col < q; col++) {
@@ -199,8 +243,8 @@ export function mixedModelSpace(
   }
   symmetrise(b0, dim);
   // B = B0 − J U Jᵀ; HC = S̃C + K U Jᵀ (S̃C's row r < q is column r of C S, i.e. cs[·][r])
-  const ju = new Float64Array(dim * p);
-  const ku = new Float64Array(dim * p);
+  const ju = ws.ju;
+  const ku = ws.ku;
   for (let r = 0; r < dim; r++) {
     for (let b = 0; b < p; b++) {
       let sj = 0;
@@ -210,8 +254,9 @@ export function mixedModelSpace(
       ku[r * p + b] = sk;
     }
   }
-  const b = Float64Array.from(b0);
-  const hc = new Float64Array(dim * dim);
+  const b = ws.b;
+  b.set(b0);
+  const hc = ws.hc;
   for (let r = 0; r < dim; r++) {
     for (let col = 0; col < dim; col++) {
       let sb = 0;

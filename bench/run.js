@@ -14,6 +14,7 @@ const { readCsvFile } = require('../dist/data/csv');
 const { parseModel } = require('../dist/model/parse');
 const { buildDesign } = require('../dist/data/build-design');
 const { fitDesign } = require('../dist/fit/fit-design');
+const { studyBreakdown } = require('./study-breakdown');
 
 const args = process.argv.slice(2);
 const asJson = args.includes('--json');
@@ -112,6 +113,12 @@ async function studyBench() {
     byWorkers[workers] = childReplicates / timings.runSeconds;
     finalise[workers] = timings.finaliseSeconds;
   }
+  const breakdown = studyBreakdown(design, quick ? 500 : 4000);
+  // memory: a study of a million replicate rows (a tenth with --quick), two workers, in a fresh process
+  const memoryRows = quick ? 100000 : 1000000;
+  const memoryReplicates = Math.ceil(memoryRows / breakdown.rowsPerReplicate);
+  const memory = JSON.parse(execFileSync(process.execPath, [join(__dirname, 'study-run-child.js'), join(__dirname, 'study-random-intercept.json'), String(memoryReplicates), '2'], { encoding: 'utf8' })
+    .trim().split('\n').pop());
   const demoOut = mkdtempSync(join(tmpdir(), 'quadrat-bench-demo-'));
   t0 = process.hrtime.bigint();
   execFileSync(process.execPath, [join(__dirname, '..', 'bin', 'quadrat.js'), 'demo', '--out', demoOut], { stdio: 'ignore' });
@@ -135,6 +142,8 @@ async function studyBench() {
     finaliseSeconds: Number(finalise[2].toFixed(2)),
     replicates: childReplicates,
     demoWallSeconds: Number(demoSeconds.toFixed(2)),
+    breakdown,
+    memory: { replicateRows: Math.round(memoryReplicates * breakdown.rowsPerReplicate), peakRssMB: memory.peakRssMB, seconds: Number((memory.runSeconds + memory.finaliseSeconds).toFixed(1)) },
   };
 }
 
@@ -199,6 +208,11 @@ async function main() {
     console.log(`Study benchmark (${study.case}):`);
     console.log(`  replicates per second: ${study.replicatesPerSecondInThread} in one thread without I/O, ${study.replicatesPerSecondOneWorker} with 1 worker, ${study.replicatesPerSecondTwoWorkers} with 2 workers (scaling ${study.scaling}x)`);
     console.log(`  then assembling replicates.csv and the metrics for ${study.replicates} replicates: ${study.finaliseSeconds} s`);
+    const b = study.breakdown.microsecondsPerReplicate;
+    const perVariant = (m) => Object.entries(m).map(([k, v]) => `${k} ${v}`).join(', ');
+    console.log(`  where a replicate's time goes (µs, in one thread, ${study.breakdown.replicates} replicates, ${study.breakdown.rowsPerReplicate} rows each):`);
+    console.log(`    simulate ${b.simulate}; build design: ${perVariant(b.design)}; fit: ${perVariant(b.fit)}; tidy rows ${b.rows}; write CSV ${b.write}; metrics ${b.metrics}; whole loop ${b.wholeLoop}`);
+    console.log(`  memory: a study of ${study.memory.replicateRows} replicate rows (2 workers) peaked at ${study.memory.peakRssMB} MB resident (${study.memory.seconds} s)`);
     console.log(`  demo study (npm start: 4 scenarios x 1000 replicates x 2 variants) wall time: ${study.demoWallSeconds} s including start-up`);
     console.log(`  plan over 4 to 60 sites (random intercept, 4 per site, power of a site covariate >= 0.8, 2 workers): ${study.planWallSeconds} s wall time including start-up, ${study.planReplicates} replicates, answer ${study.planAnswer}${study.planDecided ? '' : ' (undecided)'}`);
   }

@@ -3,8 +3,9 @@ import { readFileSync } from 'fs';
 import { join } from 'path';
 import { readCsvFile } from '../kernel-lib/data/csv';
 import { fitModel } from '../kernel-lib/analyse/fit-model';
-import { conditionalModes, fixedEffectsCompare, groupData, normalQuantilePlot, residualsVsFitted } from '../kernel-lib/plots';
+import { predictedGroupEffects, fixedEffectsCompare, groupData, normalQuantilePlot, residualsVsFitted } from '../kernel-lib/plots';
 import { expectValidAndRendered, markItems } from './helpers/vega-lite-checks';
+import { groupEffectRows } from '../kernel-lib/notebook/tables';
 
 // The single-fit builders on real fit results: the invented Larkspur Fen survey (data/README.md)
 // fitted with year as a random and as a fixed grouping factor. No snapshots here (the numbers
@@ -26,9 +27,17 @@ describe('single-fit plots of the demo survey fits', () => {
     expect(markItems(view, 'group_means')).toHaveLength(yearRandom.levels.site);
   });
 
-  it('conditionalModes draws one interval per site', async () => {
-    const { view } = await expectValidAndRendered(conditionalModes(yearRandom.modes, { factor: 'site' }), ['<line']);
-    expect(markItems(view, 'modes')).toHaveLength(yearRandom.levels.site);
+  it('predictedGroupEffects draws a raw deviation, a predicted effect and an interval per site', async () => {
+    const model = JSON.parse(readFileSync(join(DATA, 'demo-model.json'), 'utf8'));
+    const spec = predictedGroupEffects(groupEffectRows(yearRandom, columns, model), { factor: 'site' });
+    const { view } = await expectValidAndRendered(spec, ['<line', '<path']);
+    expect(markItems(view, 'predicted')).toHaveLength(yearRandom.levels.site);
+    expect(markItems(view, 'raw')).toHaveLength(yearRandom.levels.site);
+    expect(markItems(view, 'intervals')).toHaveLength(yearRandom.levels.site);
+    // nested plots are labelled site/plot and found in the data
+    const plots = groupEffectRows(yearRandom, columns, model).filter((r) => r.factor === 'plot');
+    expect(plots).toHaveLength(yearRandom.levels.plot);
+    expect(plots.every((r) => r.n > 0 && Number.isFinite(r.raw))).toBe(true);
   });
 
   it('residual plots draw one point per observation', async () => {

@@ -16,4 +16,4 @@ export type { StudyProgressLines } from './study-progress';
 export { metricTable } from './metric-table';
 export { cellCounts, cellCountChart } from './cell-counts';
 export type { CellCountRow } from './cell-counts';
-export { surveyTable, fixedEffectsTable, groupSdTable, groupEffectsTable, replicatesTable, metricsTable } from './tables';
+export { surveyTable, fixedEffectsTable, groupSdTable, groupEffectsTable, replicatesTable, metricsTable, groupEffectRows } from './tables';

@@ -5,6 +5,9 @@
 import * as aq from 'arquero';
 import type { ColumnTable } from 'arquero';
 import { toColumns, type Columns } from '../data/columns';
+import { nestedLabel } from '../data/describe-survey';
+import type { ModelSpec } from '../model/types';
+import type { GroupEffectRow } from '../plots/predicted-group-effects';
 import type { SurveyData } from '../analyse/fit-model';
 import type { FitResult } from '../fit/result';
 import { normalQuantile } from '../numeric/distributions';
@@ -52,4 +55,37 @@ export function replicatesTable(rows: readonly ReplicateRow[]): ColumnTable {
 /** A study's metrics (value and Monte Carlo SE per scenario, variant, parameter, metric) as a table. */
 export function metricsTable(rows: readonly MetricRow[]): ColumnTable {
   return aq.from(rows.map((r) => ({ ...r, note: r.note ?? '', nominal: r.nominal ?? NaN })));
+}
+
+/**
+ * Raw mean deviation and predicted effect of every level of the model's random grouping factors,
+ * with the predicted effect's interval (± z · conditional SD). Raw deviation of level g: the
+ * predicted effect plus the mean residual of g's observations, i.e. what the level's own data
+ * say before the model pulls it towards 0.
+ */
+export function groupEffectRows(fit: FitResult, data: SurveyData, model: ModelSpec, level = 0.95): GroupEffectRow[] {
+  const columns = toColumns(data as Columns);
+  const within: Record<string, string> = {};
+  for (const g of model.groups ?? []) if (g.within) within[g.factor] = g.within;
+  const z = normalQuantile(0.5 + level / 2);
+  const sums = new Map<string, { sum: number; n: number }>();
+  for (const factor of new Set(fit.modes.map((m) => m.factor))) {
+    if (!(factor in columns)) continue;
+    for (let k = 0; k < fit.rowIds.length; k++) {
+      const label = nestedLabel(columns, factor, fit.rowIds[k], within);
+      if (label === null) continue;
+      const key = `${factor}\u0000${label}`;
+      const s = sums.get(key) ?? { sum: 0, n: 0 };
+      s.sum += fit.residuals[k];
+      s.n++;
+      sums.set(key, s);
+    }
+  }
+  return fit.modes.map((m) => {
+    const s = sums.get(`${m.factor}\u0000${m.level}`);
+    return {
+      factor: m.factor, level: m.level, term: m.term, predicted: m.mode, lower: m.mode - z * m.sd, upper: m.mode + z * m.sd,
+      raw: s && m.term === 'intercept' ? m.mode + s.sum / s.n : NaN, n: s?.n ?? 0,
+    };
+  });
 }

@@ -9,8 +9,8 @@ export type { SdRecoveryOptions } from './sd-recovery';
 // One survey and one fit
 export { groupData } from './group-data';
 export type { GroupDataOptions } from './group-data';
-export { conditionalModes } from './conditional-modes';
-export type { ConditionalModesOptions } from './conditional-modes';
+export { predictedGroupEffects } from './predicted-group-effects';
+export type { GroupEffectRow, PredictedGroupEffectsOptions } from './predicted-group-effects';
 export { residualsVsFitted } from './residuals-vs-fitted';
 export type { ResidualsVsFittedOptions } from './residuals-vs-fitted';
 export { normalQuantilePlot } from './normal-quantile';

@@ -3,7 +3,7 @@ const js = require('@eslint/js');
 const tseslint = require('typescript-eslint');
 
 module.exports = tseslint.config(
-  { ignores: ['dist/**', 'node_modules/**', 'notebooks/**', 'out/**', 'tests/artifacts/**'] },
+  { ignores: ['dist/**', 'node_modules/**', 'notebooks/**', 'out/**', 'tests/artifacts/**', 'docs/api/**'] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {

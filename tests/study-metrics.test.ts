@@ -418,7 +418,7 @@ describe('property: simulated normal intervals with known sigma', () => {
 });
 
 describe('summarise at scale', () => {
-  it('handles 1,000,000 rows (20 scenarios x 2 variants x 10 parameters x 2500 replicates) quickly', () => {
+  it('handles 1,000,000 rows (20 scenarios x 2 variants x 10 parameters x 2500 replicates) with the right counts per cell', () => {
     const rows: ReplicateRow[] = [];
     const rng = seedrandom('scale');
     for (let s = 0; s < 20; s++) {
@@ -444,13 +444,10 @@ describe('summarise at scale', () => {
         }
       }
     }
-    const start = performance.now();
+    // Speed at this size is measured by the benchmark, not here (no timed tests).
     const metrics = summarise(rows);
-    const ms = performance.now() - start;
     expect(pick(metrics.filter((m) => m.scenario === 's7'), 'siteFixed', 'p9', 'sdMedian').n).toBe(2500);
     expect(metrics.filter((m) => m.metric === 'failureShare')).toHaveLength(40);
-    // About 0.4 s here (10M rows: about 4 s); the bound catches super-linear behaviour.
-    expect(ms).toBeLessThan(3000);
   });
 });
 

@@ -85,7 +85,9 @@ export function groupEffectRows(fit: FitResult, data: SurveyData, model: ModelSp
     const s = sums.get(`${m.factor}\u0000${m.level}`);
     return {
       factor: m.factor, level: m.level, term: m.term, predicted: m.mode, lower: m.mode - z * m.sd, upper: m.mode + z * m.sd,
-      raw: s && m.term === 'intercept' ? m.mode + s.sum / s.n : NaN, n: s?.n ?? 0,
+      // raw mean deviation only where residuals share the effects' scale (normal fits); a count or
+      // detection fit's residuals are on the response scale, its effects on the link scale
+      raw: s && m.term === 'intercept' && !fit.response ? m.mode + s.sum / s.n : NaN, n: s?.n ?? 0,
     };
   });
 }

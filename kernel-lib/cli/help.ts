@@ -71,7 +71,7 @@ export const COMMAND_HELP: Record<string, CommandHelp> = {
   },
   'study plan': {
     short: 'find how many levels (sites, years, …) a goal needs',
-    usage: 'study plan <design.json> --out <folder> [--workers W] [--survey <pilot.csv> --model <model.json> --sd-of <factor>]',
+    usage: 'study plan <design.json> --out <folder> [--workers W] [--survey <pilot.csv> --model <model.json> --sd-of <factor> [CSV options]]',
     about: "Find the smallest value of the design's plan.vary (sites, years, …) that meets the plan's goals; writes plan.json, the curves and report.html. Run the same command again to resume.",
     options: [
       ['--out <folder>', 'plan folder (required)'],
@@ -79,6 +79,7 @@ export const COMMAND_HELP: Record<string, CommandHelp> = {
       ['--survey <pilot.csv>', 'plan from a pilot survey: derive the design from it (the JSON then needs only the plan block)'],
       ['--model <file.json>', 'with --survey: the model fitted to the pilot'],
       ['--sd-of <factor>', "with --survey: plan at both ends and the estimate of this factor's SD (95% profile interval)"],
+      ...CSV_OPTIONS,
     ],
   },
   'design from-survey': {

@@ -7,6 +7,7 @@ import { runPlan } from '../study/plan-run';
 import { planFromPilot } from '../study/plan-pilot';
 import { readCsvFile } from '../data/csv';
 import type { ModelSpec } from '../model/types';
+import { csvOptions } from './fit-command';
 import { COMMAND_HELP } from './help';
 import { readJsonFile } from './read-json-file';
 
@@ -20,7 +21,10 @@ const PLAN_USAGE = `quadrat ${COMMAND_HELP['study plan'].usage}`;
 export async function planCommand(argv: string[], print: (s: string) => void): Promise<number> {
   const { values, positionals } = parseArgs({
     args: argv, allowPositionals: true, strict: true,
-    options: { out: { type: 'string' }, workers: { type: 'string' }, survey: { type: 'string' }, model: { type: 'string' }, 'sd-of': { type: 'string' } },
+    options: {
+      out: { type: 'string' }, workers: { type: 'string' }, survey: { type: 'string' }, model: { type: 'string' }, 'sd-of': { type: 'string' },
+      delimiter: { type: 'string' }, decimal: { type: 'string' }, missing: { type: 'string', multiple: true },
+    },
   });
   if (positionals.length !== 1) throw new QuadratInputError(`study plan: expected one design file; usage: ${PLAN_USAGE}`, { field: 'design' });
   if (!values.out) throw new QuadratInputError('study plan: --out <folder> is required', { field: '--out' });
@@ -50,7 +54,7 @@ export async function planCommand(argv: string[], print: (s: string) => void): P
   }
 }
 
-interface PilotArgs { out: string; survey: string; model?: string; 'sd-of'?: string }
+interface PilotArgs { out: string; survey: string; model?: string; 'sd-of'?: string; delimiter?: string; decimal?: string; missing?: string[] }
 
 /**
  * From a pilot survey: the design is derived from the pilot fit (only the plan block and the seed
@@ -62,7 +66,7 @@ async function pilotPlan(json: unknown, args: PilotArgs, workers: number | undef
   const block = json as { plan?: Record<string, unknown>; seed?: number | string };
   if (typeof block.plan !== 'object' || block.plan === null) throw new QuadratInputError('plan: the JSON file has no plan block', { field: 'plan' });
   const model = readJsonFile(args.model, 'model') as ModelSpec;
-  const result = await planFromPilot(readCsvFile(args.survey), model, block.plan, {
+  const result = await planFromPilot(readCsvFile(args.survey, csvOptions(args)), model, block.plan, {
     out: args.out, sdOf: args['sd-of'], workers, seed: block.seed, onProgress: (line) => print(`  ${line}`),
   });
   for (const c of result.cases) writeFileSync(join(args.out, c.case.replace(' ', '-'), 'report.html'), await planReportHtml(c.result, `Sample-size plan, SD of ${result.factor} at its ${c.case}`));

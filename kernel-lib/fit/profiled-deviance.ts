@@ -862,3 +862,13 @@ export class ProfiledDeviance {
     return this.inverse;
   }
 }
+
+/**
+ * (T A⁻¹ Tᵀ)[i,i] = Σ_a Σ_c T[i,a] A⁻¹[a,c] T[i,c] for level l of a term with k columns, from its
+ * inverse diagonal block: the conditional variance factor of one random effect (Bates et al. 2015, §3.5).
+ */
+export function conditionalVarianceFactor(T: Float64Array, blk: Float64Array, l: number, k: number, i: number): number {
+  let v = 0;
+  for (let a = 0; a <= i; a++) for (let c = 0; c <= i; c++) v += T[i * k + a] * blk[l * k * k + a * k + c] * T[i * k + c];
+  return v;
+}

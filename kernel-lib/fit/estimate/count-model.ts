@@ -25,7 +25,7 @@ import { GlmResponse, type CountFamily } from './glm-response';
 import { GlmIrls } from './glm-irls';
 import { LaplaceGeneral } from './laplace-general';
 import { OneInterceptQuadrature } from './quadrature-one-intercept';
-import type { ProfiledDeviance } from '../profiled-deviance';
+import { conditionalVarianceFactor, type ProfiledDeviance } from '../profiled-deviance';
 
 export type Integration = 'laplace' | 'quadrature';
 
@@ -312,9 +312,7 @@ function conditionalSds(laplace: LaplaceGeneral, layout: ProfiledDeviance): Floa
     const blk = blocks[s];
     for (let l = 0; l < t.m; l++) {
       for (let i = 0; i < k; i++) {
-        let v = 0;
-        for (let a = 0; a <= i; a++) for (let c = 0; c <= i; c++) v += T[i * k + a] * blk[l * k * k + a * k + c] * T[i * k + c];
-        out[t.start + l * k + i] = Math.sqrt(v);
+        out[t.start + l * k + i] = Math.sqrt(conditionalVarianceFactor(T, blk, l, k, i));
       }
     }
   }

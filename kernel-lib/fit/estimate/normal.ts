@@ -7,7 +7,7 @@ import type { DesignMatrices } from '../../data/design-matrices';
 import type { ConditionalModeRow } from '../result';
 import { aliasReasons } from '../alias-reasons';
 import { degenerateReason } from '../degenerate';
-import { ProfiledDeviance } from '../profiled-deviance';
+import { ProfiledDeviance, conditionalVarianceFactor } from '../profiled-deviance';
 import { optimiseTheta, BOUNDARY_TOLERANCE } from '../optimise-theta';
 import { smallSampleIntervals } from '../inference/intervals';
 import type { Estimate, EstimateOptions, TermCovariance } from './types';
@@ -158,9 +158,7 @@ function conditionalModes(dev: ProfiledDeviance, b: Float64Array, sigma2: number
     const blk = blocks[s];
     for (let l = 0; l < t.m; l++) {
       for (let i = 0; i < k; i++) {
-        // (T A⁻¹ Tᵀ)[i,i] = Σ_a Σ_c T[i,a] A⁻¹[a,c] T[i,c]
-        let v = 0;
-        for (let a = 0; a <= i; a++) for (let c = 0; c <= i; c++) v += T[i * k + a] * blk[l * k * k + a * k + c] * T[i * k + c];
+        const v = conditionalVarianceFactor(T, blk, l, k, i);
         rows.push({ factor: term.factor, level: term.levels[l], term: term.terms[i], mode: b[t.start + l * k + i], sd: Math.sqrt(sigma2 * v) });
       }
     }

@@ -754,6 +754,12 @@ export class ProfiledDeviance {
       }
     }
     for (let l = 0; l < m1; l++) backSolveTransposeInPlace(this.l11, k1, u, k1, l * k1 * k1, l * k1);
+    this.spreadInto(u, b);
+    return this.effects;
+  }
+
+  /** b = Λ(θ)u in the engine's term order, from the current templates. */
+  spreadInto(u: Float64Array, b: Float64Array): void {
     for (let s = 0; s < this.terms.length; s++) {
       const t = this.terms[s];
       const T = this.templates[s];
@@ -766,7 +772,6 @@ export class ProfiledDeviance {
         }
       }
     }
-    return this.effects;
   }
 
   /**

@@ -66,20 +66,7 @@ export class LaplaceGeneral {
 
   /** b = Λ(θ)u in the engine's term order (templates must be set). */
   private spread(templatesFrom: ProfiledDeviance): void {
-    const { u, b } = this;
-    const terms = templatesFrom.terms;
-    for (let s = 0; s < terms.length; s++) {
-      const t = terms[s];
-      const T = templatesFrom.templates[s];
-      for (let l = 0; l < t.m; l++) {
-        const base = t.start + l * t.k;
-        for (let i = 0; i < t.k; i++) {
-          let sum = 0;
-          for (let j = 0; j <= i; j++) sum += T[i * t.k + j] * u[base + j];
-          b[base + i] = sum;
-        }
-      }
-    }
+    templatesFrom.spreadInto(this.u, this.b);
   }
 
   /** η = offset + Xβ + Zb. */

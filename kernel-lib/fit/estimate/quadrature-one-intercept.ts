@@ -192,15 +192,21 @@ export class OneInterceptQuadrature {
     return Float64Array.from(this.eta);
   }
 
-  /** Log integrand g(u) = Σ ℓ − u²/2 of group j at u, with its derivative and −second derivative. */
-  private at(j: number, theta: number, u: number, k: number): void {
-    const from = this.groupStart[j];
-    const to = this.groupStart[j + 1];
+  /** η of one group's rows (positions from..to of groupRows) at random effect u. */
+  private groupPredictor(from: number, to: number, theta: number, u: number): void {
     const rows = this.groupRows;
     for (let r = from; r < to; r++) {
       const i = rows[r];
       this.eta[i] = this.fixedPart[i] + theta * this.z[i] * u;
     }
+  }
+
+  /** Log integrand g(u) = Σ ℓ − u²/2 of group j at u, with its derivative and −second derivative. */
+  private at(j: number, theta: number, u: number, k: number): void {
+    const from = this.groupStart[j];
+    const to = this.groupStart[j + 1];
+    const rows = this.groupRows;
+    this.groupPredictor(from, to, theta, u);
     const ll = this.response.kernel(this.eta, k, from, to, null, this.score, this.weight, null, rows);
     let sz = 0;
     let szz = 0;
@@ -219,10 +225,7 @@ export class OneInterceptQuadrature {
     const from = this.groupStart[j];
     const to = this.groupStart[j + 1];
     const rows = this.groupRows;
-    for (let r = from; r < to; r++) {
-      const i = rows[r];
-      this.eta[i] = this.fixedPart[i] + theta * this.z[i] * u;
-    }
+    this.groupPredictor(from, to, theta, u);
     return this.response.kernel(this.eta, k, from, to, null, null, null, null, rows) - 0.5 * u * u;
   }
 

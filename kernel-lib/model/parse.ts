@@ -44,7 +44,7 @@ const MISSING_POLICIES: readonly MissingPolicy[] = ['drop', 'reject'];
 const MODEL_DEFAULTS = {
   estimation: 'REML' as Estimation,
   missing: 'drop' as MissingPolicy,
-  // Wald intervals are too narrow with few groups (Kenward and Roger 1997; tests/inference-coverage);
+  // Wald intervals are too narrow with few groups (Kenward and Roger 1997; tests/integration/coverage.test.ts);
   // Satterthwaite df cost about one more fit (bench/run.js)
   interval: 'satterthwaite',
   level: 0.95,

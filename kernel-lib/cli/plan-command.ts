@@ -1,9 +1,9 @@
 import { writeFileSync } from 'node:fs';
-import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { planCurveSpecs, planReportHtml } from '../display/plan-report';
 import { QuadratInputError } from '../model/errors';
 import { runPlan } from '../study/plan-run';
+import { planCaseFolder, planCurvePath, reportPath } from '../study/folder-layout';
 import { planFromPilot } from '../study/plan-pilot';
 import { readCsvFile } from '../data/csv';
 import type { ModelSpec } from '../model/types';
@@ -42,8 +42,8 @@ export async function planCommand(argv: string[], print: (s: string) => void): P
   process.once('SIGINT', onSigint);
   try {
     const result = await runPlan(design, { out: values.out, workers, signal: controller.signal, onProgress: (line) => print(`  ${line}`) });
-    planCurveSpecs(result).forEach((spec, j) => writeFileSync(join(values.out!, `plan-curve-${j + 1}.vl.json`), JSON.stringify(spec, null, 1)));
-    writeFileSync(join(values.out, 'report.html'), await planReportHtml(result));
+    planCurveSpecs(result).forEach((spec, j) => writeFileSync(planCurvePath(values.out!, j + 1), JSON.stringify(spec, null, 1)));
+    writeFileSync(reportPath(values.out), await planReportHtml(result));
     print('');
     print(result.sentence);
     print(`${result.replicatesRun} replicates simulated in ${result.seconds.toFixed(1)} s; plan.json and report.html in ${values.out}`);
@@ -69,7 +69,7 @@ async function pilotPlan(json: unknown, args: PilotArgs, workers: number | undef
   const result = await planFromPilot(readCsvFile(args.survey, csvOptions(args)), model, block.plan, {
     out: args.out, sdOf: args['sd-of'], workers, seed: block.seed, onProgress: (line) => print(`  ${line}`),
   });
-  for (const c of result.cases) writeFileSync(join(args.out, c.case.replace(' ', '-'), 'report.html'), await planReportHtml(c.result, `Sample-size plan, SD of ${result.factor} at its ${c.case}`));
+  for (const c of result.cases) writeFileSync(reportPath(planCaseFolder(args.out, c.case)), await planReportHtml(c.result, `Sample-size plan, SD of ${result.factor} at its ${c.case}`));
   print('');
   print(result.sentence);
   for (const note of result.notes) print(`note: ${note}`);

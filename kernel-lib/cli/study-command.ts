@@ -1,7 +1,6 @@
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { readJsonFile } from './read-json-file';
 import { readStudyFolder, studyReportHtml } from '../display/study-report';
-import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { QuadratInputError } from '../model/errors';
 import { parseWholeNumber } from '../model/option-checks';
@@ -12,6 +11,7 @@ import { mergeShards } from '../study/merge-shards';
 import { runStudy } from '../study/run-study';
 import { readStudy, readingText } from '../study/reading';
 import { readManifest } from '../study/study-folder';
+import { metricsJsonPath, reportPath } from '../study/folder-layout';
 import { formatMetricsTable } from './metrics-table';
 import { progressBar } from './progress-bar';
 import { planCommand } from './plan-command';
@@ -70,7 +70,7 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
   if (sub === 'summary') {
     const { values, positionals } = parseArgs({ args: rest, allowPositionals: true, strict: true, options: { json: { type: 'boolean', default: false } } });
     if (positionals.length !== 1) throw new QuadratInputError('study summary: expected one study folder', { field: 'folder' });
-    const path = join(positionals[0], 'metrics.json');
+    const path = metricsJsonPath(positionals[0]);
     if (!existsSync(path)) throw new QuadratInputError(`study summary: no metrics in "${positionals[0]}" (the study is not complete; run or merge it first)`, { field: 'folder' });
     const metrics = JSON.parse(readFileSync(path, 'utf8')) as MetricRow[];
     if (values.json) {
@@ -97,8 +97,8 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
   if (sub === 'report') {
     const { values, positionals } = parseArgs({ args: rest, allowPositionals: true, strict: true, options: { out: { type: 'string' }, title: { type: 'string' } } });
     if (positionals.length !== 1) throw new QuadratInputError('study report: expected one study folder', { field: 'folder' });
-    if (!existsSync(join(positionals[0], 'metrics.json'))) throw new QuadratInputError(`study report: no metrics in "${positionals[0]}" (the study is not complete)`, { field: 'folder' });
-    const file = values.out ?? join(positionals[0], 'report.html');
+    if (!existsSync(metricsJsonPath(positionals[0]))) throw new QuadratInputError(`study report: no metrics in "${positionals[0]}" (the study is not complete)`, { field: 'folder' });
+    const file = values.out ?? reportPath(positionals[0]);
     writeFileSync(file, await studyReportHtml(readStudyFolder(positionals[0]), values.title ?? 'Simulation study'));
     print(`report written to ${file}`);
     return 0;

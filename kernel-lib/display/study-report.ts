@@ -1,5 +1,4 @@
 import { existsSync, readFileSync } from 'node:fs';
-import { join } from 'node:path';
 import { metricVsScenario } from '../plots/metric-vs-scenario';
 import { sdRecovery } from '../plots/sd-recovery';
 import { failureWarnings } from '../study/failure-warnings';
@@ -9,6 +8,7 @@ import type { ReplicateRow } from '../study/replicate-row';
 import { readStudy, readingMarkdown, type ReadingOptions } from '../study/reading';
 import { gridFields, withScenarioFields } from '../study/scenario-fields';
 import { readManifest, type StudyManifest } from '../study/study-folder';
+import { metricsJsonPath, replicatesPath } from '../study/folder-layout';
 import { htmlTable } from './html-table';
 import { reportHtml, type ReportSection } from './report-html';
 import { specToSvg } from './spec-to-svg';
@@ -22,10 +22,10 @@ export interface StudyResults {
 /** Read a finished study folder (metrics.json, replicates.csv, study.json). */
 export function readStudyFolder(folder: string): StudyResults {
   const manifest = readManifest(folder);
-  const metricsPath = join(folder, 'metrics.json');
+  const metricsPath = metricsJsonPath(folder);
   if (!existsSync(metricsPath)) throw new Error(`"${folder}" has no metrics yet: the study is not complete`);
   const metrics = JSON.parse(readFileSync(metricsPath, 'utf8')) as MetricRow[];
-  const replicates = parseReplicateCsv(readFileSync(join(folder, 'replicates.csv'), 'utf8'), 'replicates.csv');
+  const replicates = parseReplicateCsv(readFileSync(replicatesPath(folder), 'utf8'), 'replicates.csv');
   return { manifest, metrics, replicates };
 }
 

@@ -1,6 +1,6 @@
 /**
- * Batch files of a study folder and their checks. Each batch is `batches/sSSSS-bBBBBBB.csv` (rows
- * without header, so that replicates.csv is their concatenation) beside a `.check` file recording
+ * Batch files of a study folder and their checks (names: ./folder-layout). Each batch holds rows
+ * without header, so that replicates.csv is their concatenation, beside a check file recording
  * its row count, SHA-256 and the study and run that wrote it. Both are written as temporary file,
  * flush, rename; a batch whose check is missing or does not match (cut short, emptied, written by
  * another study) is not trusted.
@@ -8,7 +8,8 @@
 import { createHash } from 'node:crypto';
 import { closeSync, existsSync, fsyncSync, openSync, readdirSync, readFileSync, renameSync, rmSync, writeSync } from 'node:fs';
 import { join } from 'node:path';
-import { batchFileName, type Batch } from './batch-plan';
+import type { Batch } from './batch-plan';
+import { batchCheckPath, batchFileName, batchPath, batchesFolder, isBatchFile, isTemporary, temporaryFolders, temporaryPath } from './folder-layout';
 
 /** Who wrote a batch: the study's fingerprint and the run (one per runStudy call). */
 export interface BatchStamp {
@@ -26,7 +27,7 @@ interface BatchCheck {
 
 /** Write text as temporary file, flush to disk, rename over the target: the target is whole or absent. */
 export function writeAtomic(path: string, text: string): void {
-  const tmp = `${path}.tmp-${process.pid}`;
+  const tmp = temporaryPath(path);
   const fd = openSync(tmp, 'w');
   try {
     writeSync(fd, text);
@@ -49,24 +50,23 @@ function countLines(text: string): number {
 
 /** Write one batch and then its check (a batch without a valid check is recomputed). */
 export function writeBatch(folder: string, batch: Pick<Batch, 'scenario' | 'batch'>, csv: string, stamp: BatchStamp = { study: '', run: '' }): void {
-  const path = join(folder, 'batches', batchFileName(batch));
-  writeAtomic(path, csv);
+  const name = batchFileName(batch);
+  writeAtomic(batchPath(folder, name), csv);
   const check: BatchCheck = { format: 'quadrat-batch-check/1', rows: countLines(csv), sha256: sha256(csv), study: stamp.study, run: stamp.run };
-  writeAtomic(`${path}.check`, JSON.stringify(check));
+  writeAtomic(batchCheckPath(folder, name), JSON.stringify(check));
 }
 
 /** A batch's text when it passes its check, else why not. `study` '' accepts any study. */
 export function readCheckedBatch(folder: string, name: string, study = ''): { text: string } | { problem: string } {
-  const path = join(folder, 'batches', name);
   let check: BatchCheck;
   try {
-    check = JSON.parse(readFileSync(`${path}.check`, 'utf8')) as BatchCheck;
+    check = JSON.parse(readFileSync(batchCheckPath(folder, name), 'utf8')) as BatchCheck;
   } catch {
     return { problem: 'its check file is missing or unreadable (the run stopped while writing it?)' };
   }
   let text: string;
   try {
-    text = readFileSync(path, 'utf8');
+    text = readFileSync(batchPath(folder, name), 'utf8');
   } catch {
     return { problem: 'the batch file is missing or unreadable' };
   }
@@ -79,8 +79,8 @@ export function readCheckedBatch(folder: string, name: string, study = ''): { te
 
 /** Names of the batch files present (checked or not). */
 function batchNames(folder: string): string[] {
-  const dir = join(folder, 'batches');
-  return existsSync(dir) ? readdirSync(dir).filter((f) => f.endsWith('.csv')) : [];
+  const dir = batchesFolder(folder);
+  return existsSync(dir) ? readdirSync(dir).filter(isBatchFile) : [];
 }
 
 /** Batches that pass their check, and those that do not with the reason. */
@@ -102,17 +102,17 @@ export function finishedBatches(folder: string, study = ''): Set<string> {
 
 /** Remove a batch and its check (before recomputing it). */
 export function removeBatch(folder: string, name: string): void {
-  rmSync(join(folder, 'batches', name), { force: true });
-  rmSync(join(folder, 'batches', `${name}.check`), { force: true });
+  rmSync(batchPath(folder, name), { force: true });
+  rmSync(batchCheckPath(folder, name), { force: true });
 }
 
 /** Remove temporary files left by a killed run (only while holding the folder's lock). Returns how many. */
 export function removeStaleTemporaries(folder: string): number {
   let removed = 0;
-  for (const dir of [folder, join(folder, 'batches')]) {
+  for (const dir of temporaryFolders(folder)) {
     if (!existsSync(dir)) continue;
     for (const f of readdirSync(dir)) {
-      if (/\.tmp-\d+$/.test(f)) {
+      if (isTemporary(f)) {
         rmSync(join(dir, f), { force: true });
         removed++;
       }

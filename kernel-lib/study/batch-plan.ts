@@ -47,7 +47,3 @@ export function parseShard(text: string): Shard {
   }
   return { index, count };
 }
-
-export function batchFileName(b: Pick<Batch, 'scenario' | 'batch'>): string {
-  return `s${String(b.scenario).padStart(4, '0')}-b${String(b.batch).padStart(6, '0')}.csv`;
-}

@@ -4,10 +4,11 @@
  * was deleted and reused) stops before writing another batch there.
  */
 import { hostname } from 'node:os';
-import { dirname, join, resolve } from 'node:path';
+import { dirname, resolve } from 'node:path';
 import { existsSync, mkdirSync, readFileSync, realpathSync, rmSync, writeFileSync } from 'node:fs';
 import { QuadratInputError } from '../model/errors';
 import { writeAtomic } from './batch-files';
+import { lockPath, writeProbePath } from './folder-layout';
 
 interface LockContent {
   pid: number;
@@ -16,11 +17,9 @@ interface LockContent {
   started: string;
 }
 
-const LOCK_FILE = 'study.lock';
-
 function readLock(folder: string): LockContent | null {
   try {
-    return JSON.parse(readFileSync(join(folder, LOCK_FILE), 'utf8')) as LockContent;
+    return JSON.parse(readFileSync(lockPath(folder), 'utf8')) as LockContent;
   } catch {
     return null;
   }
@@ -41,7 +40,7 @@ function processAlive(pid: number): boolean {
  */
 export function acquireFolderLock(folder: string, run: string): string {
   const content: LockContent = { pid: process.pid, host: hostname(), run, started: new Date().toISOString() };
-  const path = join(folder, LOCK_FILE);
+  const path = lockPath(folder);
   try {
     writeFileSync(path, JSON.stringify(content), { flag: 'wx' });
     return '';
@@ -76,7 +75,7 @@ export function lockProblem(folder: string, run: string): string {
 
 /** Release the folder if `run` holds it. */
 export function releaseFolderLock(folder: string, run: string): void {
-  if (readLock(folder)?.run === run) rmSync(join(folder, LOCK_FILE), { force: true });
+  if (readLock(folder)?.run === run) rmSync(lockPath(folder), { force: true });
 }
 
 /** Kernel file systems where a study folder can only fail, late and confusingly. */
@@ -100,7 +99,7 @@ export function checkWritableFolder(folder: string): void {
   } catch (e) {
     refuse(`the folder cannot be created (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
   }
-  const probe = join(folder, `.write-probe-${process.pid}`);
+  const probe = writeProbePath(folder);
   try {
     writeFileSync(probe, '');
     rmSync(probe, { force: true });

@@ -1,7 +1,7 @@
 import { copyFileSync, existsSync, renameSync } from 'node:fs';
-import { join } from 'node:path';
 import { QuadratInputError } from '../model/errors';
-import { batchFileName, planBatches } from './batch-plan';
+import { planBatches } from './batch-plan';
+import { batchCheckPath, batchFileName, batchPath, temporaryPath } from './folder-layout';
 import type { MetricRow } from './metrics';
 import { finalise } from './run-study';
 import { finishedBatches, openStudyFolder, readManifest } from './study-folder';
@@ -34,12 +34,13 @@ export function mergeShards(folders: string[], out: string): { batches: number; 
       );
     }
     for (const name of good) {
-      const target = join(out, 'batches', name);
+      const target = batchPath(out, name);
+      const targetCheck = batchCheckPath(out, name);
       if (!existsSync(target)) {
-        copyFileSync(join(folder, 'batches', `${name}.check`), `${target}.check.tmp-${process.pid}`);
-        copyFileSync(join(folder, 'batches', name), `${target}.tmp-${process.pid}`);
-        renameSync(`${target}.tmp-${process.pid}`, target);
-        renameSync(`${target}.check.tmp-${process.pid}`, `${target}.check`);
+        copyFileSync(batchCheckPath(folder, name), temporaryPath(targetCheck));
+        copyFileSync(batchPath(folder, name), temporaryPath(target));
+        renameSync(temporaryPath(target), target);
+        renameSync(temporaryPath(targetCheck), targetCheck);
       }
     }
   }

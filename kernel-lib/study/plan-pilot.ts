@@ -4,7 +4,7 @@
  * for one SD and once with its estimate, because an SD estimated from few levels is itself
  * uncertain and the number needed depends on it.
  */
-import { join } from 'node:path';
+import { planCaseFolder } from './folder-layout';
 import { toColumns, type Columns } from '../data/columns';
 import { designFromSurvey, type DesignFromSurveyOptions } from '../design/from-survey';
 import { fitModel, type SurveyData } from '../analyse/fit-model';
@@ -71,7 +71,7 @@ export async function planFromPilot(data: SurveyData, model: ModelSpec, plan: Re
       continue;
     }
     const design = { ...derived.design, truth: { ...derived.design.truth, sd: { ...derived.design.truth.sd, [options.sdOf]: round(sd) } }, plan };
-    const result = await runPlan(design, { out: join(options.out, name.replace(' ', '-')), workers: options.workers, onProgress: options.onProgress });
+    const result = await runPlan(design, { out: planCaseFolder(options.out, name), workers: options.workers, onProgress: options.onProgress });
     cases.push({ case: name, sd: round(sd), result });
   }
   const what = cases.length ? scenarioFieldName(cases[0].result.vary) : '';

@@ -1,7 +1,7 @@
 /**
  * Run a plan: for each candidate value the search asks about, simulate and fit replicates from
  * the same seeded streams as a study whose grid holds that value (scenario key "vary=value"),
- * checkpointed in batches under <out>/values/<value>-<design fingerprint>/, so a plan is
+ * checkpointed in batches under <out>/values/<value>-<design fingerprint>/ (./folder-layout), so a plan is
  * reproducible, resumes after an interruption and reuses every replicate already on disk. Writes <out>/plan.json.
  */
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
@@ -11,7 +11,7 @@ import { Worker } from 'node:worker_threads';
 import { parseDesign } from '../design/parse';
 import { scenarioKey } from '../design/grid';
 import { QuadratInputError } from '../model/errors';
-import { batchFileName } from './batch-plan';
+import { batchFileName, batchPath, batchesFolder, planFilePath, planValueFolder, planValueIdentityPath } from './folder-layout';
 import { summarise } from './metrics';
 import { parseReplicateCsv } from './replicate-csv';
 import type { ReplicateRow } from './replicate-row';
@@ -106,11 +106,6 @@ class BatchPool {
   }
 }
 
-/** A folder name for a candidate value: "12", "0.5", "-1.25". */
-function valueFolder(value: number): string {
-  return String(value).replace(/[^0-9A-Za-z.+-]/g, '_');
-}
-
 function formatNumber(v: number): string {
   return Number.isFinite(v) ? String(Number(v.toPrecision(3))) : 'NA';
 }
@@ -171,10 +166,10 @@ export async function runPlan(input: unknown, options: RunPlanOptions): Promise<
     const source = { ...base, grid: { [plan.vary]: [value] } };
     const fingerprint = fingerprintOf(source, 0, batchSize, variants);
     // one folder per value and design: another design (or other variants) never mixes into it
-    const folder = join(options.out, 'values', `${valueFolder(value)}-${fingerprint.slice(0, 8)}`);
-    mkdirSync(join(folder, 'batches'), { recursive: true });
+    const folder = planValueFolder(options.out, value, fingerprint);
+    mkdirSync(batchesFolder(folder), { recursive: true });
     const identity = { format: 'quadrat-plan-value/1', key: scenarioKey({ [plan.vary]: value }, [plan.vary]), value, batchSize, fingerprint };
-    const path = join(folder, 'value.json');
+    const path = planValueIdentityPath(folder);
     if (existsSync(path)) {
       const old = JSON.parse(readFileSync(path, 'utf8')) as typeof identity;
       if (old.fingerprint !== identity.fingerprint) {
@@ -202,7 +197,7 @@ export async function runPlan(input: unknown, options: RunPlanOptions): Promise<
     await pool.run(todo, options.signal);
     replicatesRun += todo.length * batchSize;
     for (let b = entry.rows.length; b < batches; b++) {
-      const file = join(entry.folder, 'batches', batchFileName({ scenario: 0, batch: b }));
+      const file = batchPath(entry.folder, batchFileName({ scenario: 0, batch: b }));
       if (!existsSync(file)) break; // interrupted
       entry.rows.push(parseReplicateCsv(readFileSync(file, 'utf8'), file));
     }
@@ -245,7 +240,7 @@ function writePlanFile(out: string, r: PlanResult, plan: PlanSpec): void {
     })),
     interrupted: r.interrupted, seconds: r.seconds,
   };
-  writeFileSync(join(out, 'plan.json'), JSON.stringify(file, null, 2) + '\n');
+  writeFileSync(planFilePath(out), JSON.stringify(file, null, 2) + '\n');
 }
 
 const finite = (v: number) => (Number.isFinite(v) ? v : null);

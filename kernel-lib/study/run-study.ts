@@ -5,7 +5,8 @@ import { Worker } from 'node:worker_threads';
 import { parseDesign } from '../design/parse';
 import type { SurveyDesign } from '../design/types';
 import { QuadratInputError } from '../model/errors';
-import { batchFileName, batchesOfShard, planBatches, type Batch, type Shard } from './batch-plan';
+import { batchesOfShard, planBatches, type Batch, type Shard } from './batch-plan';
+import { batchFileName, metricsCsvPath, metricsJsonPath } from './folder-layout';
 import type { BatchReply, BatchTask } from './batch-worker';
 import { failureWarnings } from './failure-warnings';
 import { summarise, type MetricRow } from './metrics';
@@ -268,8 +269,8 @@ export function finalise(folder: string, batches: Batch[], study = ''): { metric
   if (text === null) return null;
   const rows = parseReplicateCsv(text, 'replicates.csv');
   const metrics = summarise(rows, { levels: variantLevels(parseDesign(readManifest(folder).design)) });
-  writeAtomic(join(folder, 'metrics.json'), JSON.stringify(metrics, null, 1));
-  writeAtomic(join(folder, 'metrics.csv'), metricsToCsv(metrics));
+  writeAtomic(metricsJsonPath(folder), JSON.stringify(metrics, null, 1));
+  writeAtomic(metricsCsvPath(folder), metricsToCsv(metrics));
   return { metrics, rows };
 }
 

@@ -2,21 +2,16 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { QuadratInputError } from '../model/errors';
-import { batchFileName, type Batch } from './batch-plan';
+import type { Batch } from './batch-plan';
+import { batchFileName, batchPath, batchesFolder, manifestPath, replicatesPath, scenariosPath } from './folder-layout';
 import { REPLICATE_HEADER } from './replicate-csv';
 import { readCheckedBatch, writeAtomic } from './batch-files';
 
 export { finishedBatches, writeAtomic, writeBatch } from './batch-files';
 
 /**
- * Layout of a study's output folder:
- *   study.json        the design as given, the run settings and a fingerprint of both
- *   scenarios.json    index, key and grid values of every scenario
- *   study.lock        the process and run writing the folder (./folder-lock), while it runs
- *   batches/          one CSV per finished batch and its .check (rows, checksum, study and run; ./batch-files),
- *                     each written as temporary file, flush, rename: a batch is there whole or not at all
- *   replicates.csv    all batches in study order (written when every batch is present)
- *   metrics.csv/.json the summary with Monte Carlo SEs
+ * A study folder's manifest (study.json) and the assembly of replicates.csv; the folder's layout
+ * is ./folder-layout. Files are written as temporary file, flush, rename: whole or not at all.
  */
 export interface StudyManifest {
   format: 'quadrat-study/1';
@@ -53,8 +48,8 @@ export const PROJECT_VERSION: string = (() => {
  * settings), so that resuming never mixes results of two different studies.
  */
 export function openStudyFolder(folder: string, manifest: StudyManifest): void {
-  mkdirSync(join(folder, 'batches'), { recursive: true });
-  const path = join(folder, 'study.json');
+  mkdirSync(batchesFolder(folder), { recursive: true });
+  const path = manifestPath(folder);
   if (existsSync(path)) {
     const old = JSON.parse(readFileSync(path, 'utf8')) as StudyManifest;
     if (old.fingerprint !== manifest.fingerprint) {
@@ -66,11 +61,11 @@ export function openStudyFolder(folder: string, manifest: StudyManifest): void {
     return;
   }
   writeAtomic(path, JSON.stringify(manifest, null, 2));
-  writeAtomic(join(folder, 'scenarios.json'), JSON.stringify(manifest.scenarios, null, 2));
+  writeAtomic(scenariosPath(folder), JSON.stringify(manifest.scenarios, null, 2));
 }
 
 export function readManifest(folder: string): StudyManifest {
-  const path = join(folder, 'study.json');
+  const path = manifestPath(folder);
   if (!existsSync(path)) throw new QuadratInputError(`"${folder}" is not a study folder (no study.json)`, { field: 'folder' });
   return JSON.parse(readFileSync(path, 'utf8')) as StudyManifest;
 }
@@ -84,7 +79,7 @@ export function assembleReplicates(folder: string, batches: readonly Batch[], st
   const parts = [`${REPLICATE_HEADER}\n`];
   for (const b of batches) {
     const name = batchFileName(b);
-    if (!existsSync(join(folder, 'batches', name))) return null;
+    if (!existsSync(batchPath(folder, name))) return null;
     const r = readCheckedBatch(folder, name, study);
     if ('problem' in r) {
       throw new Error(`batch ${name} in "${folder}" failed its check: ${r.problem}; run the study again to recompute it`);
@@ -92,6 +87,6 @@ export function assembleReplicates(folder: string, batches: readonly Batch[], st
     parts.push(r.text);
   }
   const text = parts.join('');
-  writeAtomic(join(folder, 'replicates.csv'), text);
+  writeAtomic(replicatesPath(folder), text);
   return text;
 }

@@ -1,3 +1,4 @@
+import { csvField } from '../data/csv-field';
 import type { ReplicateKind, ReplicateRow, ReplicateStatus } from './replicate-row';
 
 /**
@@ -10,10 +11,6 @@ const REPLICATE_COLUMNS = [
 ] as const;
 
 export const REPLICATE_HEADER = REPLICATE_COLUMNS.join(',');
-
-function quote(text: string): string {
-  return /[",\n\r]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
-}
 
 function num(v: number): string {
   if (Number.isNaN(v)) return '';
@@ -29,7 +26,7 @@ export function replicateRowsToCsv(rows: readonly ReplicateRow[], header = false
   const numCache = new Map<number, string>();
   const text = (s: string) => {
     let t = textCache.get(s);
-    if (t === undefined) { t = quote(s); textCache.set(s, t); }
+    if (t === undefined) { t = csvField(s); textCache.set(s, t); }
     return t;
   };
   const repeated = (v: number) => {

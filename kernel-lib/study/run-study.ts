@@ -2,6 +2,7 @@ import { randomUUID } from 'node:crypto';
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
+import { csvField } from '../data/csv-field';
 import { parseDesign } from '../design/parse';
 import type { SurveyDesign } from '../design/types';
 import { QuadratInputError } from '../model/errors';
@@ -276,8 +277,7 @@ export function finalise(folder: string, batches: Batch[], study = ''): { metric
 
 function metricsToCsv(metrics: MetricRow[]): string {
   const cols = ['scenario', 'variant', 'parameter', 'kind', 'metric', 'value', 'mcse', 'n'] as const;
-  const q = (s: string) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
   const lines = [cols.join(',')];
-  for (const m of metrics) lines.push(cols.map((c) => (typeof m[c] === 'string' ? q(m[c] as string) : Number.isNaN(m[c] as number) ? '' : String(m[c]))).join(','));
+  for (const m of metrics) lines.push(cols.map((c) => (typeof m[c] === 'string' ? csvField(m[c] as string) : Number.isNaN(m[c] as number) ? '' : String(m[c]))).join(','));
   return `${lines.join('\n')}\n`;
 }

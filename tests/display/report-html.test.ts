@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { htmlTable, markdownToHtml, reportHtml, specToSvg, STANDING_CAUTION } from '../../kernel-lib/display/index';
+import { htmlTable, reportHtml, specToSvg, STANDING_CAUTION } from '../../kernel-lib/display/index';
 
 const CAUTION =
   'Results hold only under the simulated assumptions; defer to a qualified statistician and local survey protocols.';
@@ -67,22 +67,5 @@ describe('reportHtml', () => {
   it('still ends with the standing caution when there are no sections or extra cautions', () => {
     const html = reportHtml({ title: 'Empty', sections: [] });
     expect(html).toContain(`<ul><li>${CAUTION}</li></ul>`);
-  });
-});
-
-describe('markdownToHtml', () => {
-  // CommonMark 0.31 spec examples (headings, emphasis, lists, code spans), restricted to the subset.
-  it('renders headings, emphasis, code spans, lists and links', () => {
-    expect(markdownToHtml('## Design')).toBe('<h2>Design</h2>');
-    expect(markdownToHtml('*a* and _b_ and **c** and `d*e*`')).toBe('<p><em>a</em> and <em>b</em> and <strong>c</strong> and <code>d*e*</code></p>');
-    expect(markdownToHtml('1. one\n2. two')).toBe('<ol><li>one</li><li>two</li></ol>');
-    expect(markdownToHtml('[site](https://example.org/a)')).toBe('<p><a href="https://example.org/a">site</a></p>');
-    expect(markdownToHtml('line one\nline two\n\nnext')).toBe('<p>line one line two</p>\n<p>next</p>');
-  });
-
-  it('shows raw HTML and script links as text', () => {
-    expect(markdownToHtml('<b>x</b>')).toBe('<p>&lt;b&gt;x&lt;/b&gt;</p>');
-    expect(markdownToHtml('[x](javascript:alert(1))')).toBe('<p>[x](javascript:alert(1))</p>');
-    expect(markdownToHtml('snake_case_name')).toBe('<p>snake_case_name</p>');
   });
 });

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import seedrandom from 'seedrandom';
 import { type ReplicateRow, type ReplicateStatus } from '../../kernel-lib/study/replicate-row';
-import { type MetricName, type MetricRow, formatMetric, summarise } from '../../kernel-lib/study/metrics';
+import { type MetricName, type MetricRow, summarise } from '../../kernel-lib/study/metrics';
 import { toWideTable } from '../../kernel-lib/study/wide-table';
 import { medianOfSorted, medianStandardError, sortedCopy } from '../../kernel-lib/study/quantile';
 
@@ -451,18 +451,7 @@ describe('summarise at scale', () => {
   });
 });
 
-describe('formatMetric and toWideTable', () => {
-  it('rounds the MCSE to one significant digit and the value to the same place (rule, no source)', () => {
-    expect(formatMetric(0.9432, 0.0071)).toBe('0.943 (0.007)');
-    expect(formatMetric(12.345, 0.26)).toBe('12.3 (0.3)');
-    expect(formatMetric(0.5, 0.0096)).toBe('0.50 (0.01)');
-    expect(formatMetric(1234.5, 23)).toBe('1230 (20)');
-    expect(formatMetric(-0.0001, 0.004)).toBe('0.000 (0.004)');
-    expect(formatMetric(1, 0)).toBe('1.000 (0)');
-    expect(formatMetric(0.25, NaN)).toBe('0.2500 (NA)');
-    expect(formatMetric(NaN, 0.1)).toBe('NA');
-  });
-
+describe('toWideTable', () => {
   it('pivots to one row per scenario x variant x parameter', () => {
     const wide = toWideTable(summarise(studyRows()));
     expect(wide.map((w) => `${w.variant}/${w.parameter}`)).toEqual([

@@ -6,15 +6,22 @@
  * - `text/markdown` with an `<img>` of the SVG as a data URI: nbconvert's HTML keeps this,
  *   whereas it strips `image/svg+xml` outputs;
  * - `text/plain`: a one-line description for plain consoles.
+ * - `application/javascript` (live front ends only, not while scripts/render-notebook.js renders):
+ *   the classic Notebook interface has no Vega-Lite renderer and runs this first; it puts the
+ *   picture in the output and replaces it by a live vega-embed view. JupyterLab ranks JavaScript
+ *   below Vega-Lite and Markdown, so it keeps drawing the chart itself. Untrusted outputs (a
+ *   notebook opened from elsewhere) are not run by the classic Notebook, which then shows the
+ *   Markdown picture.
  * With `interactive: true` and only while scripts/render-notebook.js renders the notebook,
  * a `text/html` entry is added (nbconvert prefers it): the same picture, replaced on page load
- * by a vega-embed view. The vega scripts are inlined once per kernel process (see vega-libraries).
+ * by a vega-embed view. The vega scripts are inlined once per kernel process (see vega-libraries),
+ * in the first chart that needs them: no network is used.
  * Outside tslab, a line is printed instead.
  */
 import { escapeHtml, jsonForScript } from './escape-html';
 import { specToSvg, svgDataUri } from './spec-to-svg';
-import { type MimeBundle, displayBundle, renderingToHtml } from './tslab-bridge';
-import { claimLibraryInlining, vegaLibrariesScript } from './vega-libraries';
+import { type MimeBundle, displayBundle, insideTslab, renderingToHtml } from './tslab-bridge';
+import { claimLibraryInlining, vegaLibrariesCode, vegaLibrariesScript } from './vega-libraries';
 
 export const VEGA_LITE_MIME = 'application/vnd.vegalite.v5+json';
 
@@ -24,9 +31,11 @@ export interface ShowChartOptions {
 }
 
 export interface ChartBundleOptions {
-  /** Include the `text/html` interactive view. */
+  /** Include the `text/html` interactive view (for nbconvert's HTML). */
   interactive: boolean;
-  /** Inline the vega scripts in that view (the first interactive chart of a document). */
+  /** Include the `application/javascript` live view (for the classic Notebook interface). */
+  live?: boolean;
+  /** Inline the vega scripts in that view (the first interactive or live chart of a session). */
   includeLibraries: boolean;
   /** Element id of the interactive view; unique within the document. */
   elementId: string;
@@ -69,7 +78,32 @@ export function chartBundle(spec: object, svg: string, options: ChartBundleOptio
       (options.includeLibraries ? vegaLibrariesScript() + '\n' : '') +
       `<div id="${id}" class="quadrat-chart">${img}</div>\n${embed}`;
   }
+  if (options.live === true) bundle['application/javascript'] = liveChartScript(spec, img, options.includeLibraries);
   return bundle;
+}
+
+/**
+ * JavaScript that draws the chart where it runs: `element` is the output area (a jQuery object
+ * in the classic Notebook, a DOM element in nbconvert's HTML). The picture goes in first and
+ * stays when vega-embed is missing or fails; the libraries are defined only when no earlier
+ * output of the page defined them.
+ */
+export function liveChartScript(spec: object, img: string, includeLibraries: boolean): string {
+  const libraries = includeLibraries ? `if (typeof window.vegaEmbed !== 'function') {\n${vegaLibrariesCode()}\n}\n` : '';
+  return (
+    `(function (host) {\n` +
+    `  if (host && host.jquery) host = host[0];\n` +
+    `  if (!host || !host.appendChild) return;\n` +
+    `  var box = document.createElement('div');\n` +
+    `  box.className = 'quadrat-chart quadrat-live-chart';\n` +
+    `  box.innerHTML = ${jsonForScript(img)};\n` +
+    `  host.appendChild(box);\n` +
+    libraries +
+    `  if (typeof window.vegaEmbed !== 'function') return;\n` +
+    `  window.vegaEmbed(box, ${jsonForScript(spec)}, { renderer: 'svg', actions: false })\n` +
+    `    .catch(function (err) { box.innerHTML = ${jsonForScript(img)}; console.error('vega-embed:', err); });\n` +
+    `})(typeof element === 'undefined' ? null : element);\n`
+  );
 }
 
 /**
@@ -78,11 +112,14 @@ export function chartBundle(spec: object, svg: string, options: ChartBundleOptio
  */
 export async function showChart(spec: object, options: ShowChartOptions = {}): Promise<void> {
   const svg = await specToSvg(spec);
-  const interactive = options.interactive === true && renderingToHtml();
+  const rendering = renderingToHtml();
+  const interactive = options.interactive === true && rendering;
+  const live = !rendering;
   chartCounter += 1;
   const bundle = chartBundle(spec, svg, {
     interactive,
-    includeLibraries: interactive && claimLibraryInlining(),
+    live,
+    includeLibraries: (interactive || live) && insideTslab() && claimLibraryInlining(),
     elementId: `quadrat-chart-${process.pid}-${chartCounter}`,
   });
   if (!displayBundle(bundle)) {

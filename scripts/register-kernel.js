@@ -30,13 +30,15 @@ function kernelSpec() {
 
 /**
  * Write the kernelspec unless an identical one is there. Returns where it is and whether it changed.
+ * `jupyterPath` is the folder that gets kernels/quadrat-ts/ (default notebooks/.kernel; a test
+ * passes a temporary Jupyter data folder).
  */
-function registerKernel() {
+function registerKernel(jupyterPath = JUPYTER_PATH_DIR) {
   const tslab = path.join(ROOT, 'node_modules', 'tslab', 'dist', 'main.js');
   if (!fs.existsSync(tslab)) {
     throw new Error(`tslab is not installed (${path.relative(ROOT, tslab)} missing); run "npm install" first`);
   }
-  const kernelDir = path.join(JUPYTER_PATH_DIR, 'kernels', KERNEL_NAME);
+  const kernelDir = path.join(jupyterPath, 'kernels', KERNEL_NAME);
   const file = path.join(kernelDir, 'kernel.json');
   const text = JSON.stringify(kernelSpec(), null, 2) + '\n';
   let changed = true;
@@ -49,7 +51,7 @@ function registerKernel() {
     fs.mkdirSync(kernelDir, { recursive: true });
     fs.writeFileSync(file, text);
   }
-  return { kernelName: KERNEL_NAME, kernelFile: file, jupyterPath: JUPYTER_PATH_DIR, changed };
+  return { kernelName: KERNEL_NAME, kernelFile: file, jupyterPath, changed };
 }
 
 module.exports = { registerKernel, kernelSpec, KERNEL_NAME, JUPYTER_PATH_DIR, ROOT };

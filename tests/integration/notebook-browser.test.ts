@@ -1,0 +1,312 @@
+/**
+ * The live loop a user works in: Debian's classic Jupyter Notebook server (`jupyter-notebook`) on
+ * the loopback address with the project's kernel, driven by headless Chromium through
+ * playwright-core. It opens a copy of notebook 02, runs all cells from the Cell menu, checks that
+ * every cell finished without error output and that every chart is drawn live (a vega-embed SVG),
+ * edits the seed in the settings cell by keyboard, runs all cells again and checks that the charts
+ * changed, then stops the server and checks that the kernel process ended with it.
+ *
+ * Everything Jupyter writes goes to a temporary folder (config, data with the kernelspec, runtime,
+ * HOME), the notebook is a copy, results go to QUADRAT_OUT in that folder. The server runs in its
+ * own process group and the kernel in its own session (jupyter_client starts it so); both are
+ * stopped in `finally`, also when a check fails. A screenshot is kept in tests/artifacts/.
+ * Skipped with a message when jupyter-notebook or Chromium is missing, except under CI.
+ */
+import { describe, expect, it } from 'vitest';
+import { type ChildProcess, spawn, spawnSync } from 'node:child_process';
+import * as fs from 'node:fs';
+import * as net from 'node:net';
+import * as os from 'node:os';
+import * as path from 'node:path';
+import { randomBytes } from 'node:crypto';
+import { chromium, type Browser, type Page } from 'playwright-core';
+
+const ROOT = path.resolve(__dirname, '..', '..');
+const NOTEBOOK = '02-one-dataset-both-ways.ipynb';
+const ARTIFACTS = path.join(ROOT, 'tests', 'artifacts');
+const CHROMIUM = '/usr/bin/chromium';
+const SERVER = 'jupyter-notebook';
+const TEST_TIMEOUT_MS = 300_000;
+/** One run of all cells (the kernel's first cell compiles the library: about 10 s on a quiet machine). */
+const RUN_ALL_TIMEOUT_MS = 150_000;
+
+const { registerKernel } = require('../../scripts/register-kernel.js') as {
+  registerKernel: (jupyterPath: string) => { kernelName: string };
+};
+
+const serverWorks = spawnSync(SERVER, ['--version'], { encoding: 'utf8' }).status === 0;
+const chromiumWorks = fs.existsSync(CHROMIUM);
+if (!serverWorks) console.warn(`browser notebook test skipped: ${SERVER} does not run (apt-get install jupyter-notebook)`);
+if (!chromiumWorks) console.warn(`browser notebook test skipped: ${CHROMIUM} not found (apt-get install chromium)`);
+
+/** A free TCP port on the loopback address (asked from the system, then released). */
+function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const probe = net.createServer();
+    probe.once('error', reject);
+    probe.listen(0, '127.0.0.1', () => {
+      const port = (probe.address() as net.AddressInfo).port;
+      probe.close(() => resolve(port));
+    });
+  });
+}
+
+function sleep(ms: number): Promise<void> {
+  return new Promise((resolve) => setTimeout(resolve, ms));
+}
+
+/** Whether a process is alive (a zombie, ended but not yet collected, counts as ended). */
+function alive(pid: number): boolean {
+  try {
+    const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
+    return stat.slice(stat.lastIndexOf(')') + 2)[0] !== 'Z';
+  } catch {
+    return false;
+  }
+}
+
+/** Processes whose command line mentions `marker` (the kernels name their connection file in our runtime folder). */
+function processesMentioning(marker: string): number[] {
+  const pids: number[] = [];
+  for (const entry of fs.readdirSync('/proc')) {
+    if (!/^\d+$/.test(entry) || Number(entry) === process.pid) continue;
+    try {
+      if (fs.readFileSync(`/proc/${entry}/cmdline`, 'utf8').includes(marker) && alive(Number(entry))) pids.push(Number(entry));
+    } catch {
+      // ended meanwhile
+    }
+  }
+  return pids;
+}
+
+async function waitUntil(what: string, ok: () => boolean | Promise<boolean>, timeoutMs: number): Promise<void> {
+  const end = Date.now() + timeoutMs;
+  while (!(await ok())) {
+    if (Date.now() > end) throw new Error(`timed out after ${timeoutMs / 1000} s waiting for ${what}`);
+    await sleep(200);
+  }
+}
+
+/** Stop a process and its group: TERM, then KILL after `graceMs`. */
+async function stopGroup(pid: number, graceMs: number): Promise<void> {
+  const signal = (sig: NodeJS.Signals) => {
+    for (const target of [-pid, pid]) {
+      try {
+        process.kill(target, sig);
+      } catch {
+        // already gone, or not a group leader
+      }
+    }
+  };
+  signal('SIGTERM');
+  const end = Date.now() + graceMs;
+  while (alive(pid) && Date.now() < end) await sleep(100);
+  signal('SIGKILL');
+}
+
+/** State of the notebook as the page shows it: prompt numbers of code cells, kernel indicator, outputs. */
+interface PageState {
+  prompts: (number | null)[];
+  idle: boolean;
+  errorOutputs: number;
+  /** Per code cell: the SVG of each live chart, or '' for a chart box without one. */
+  charts: string[][];
+}
+
+function readState(page: Page): Promise<PageState> {
+  return page.evaluate(() => {
+    const doc = (globalThis as any).document;
+    const cells = Array.from(doc.querySelectorAll('#notebook-container .cell.code_cell')) as any[];
+    return {
+      prompts: cells.map((c) => {
+        const m = /\[(\d+)\]/.exec(c.querySelector('.input_prompt')?.textContent ?? '');
+        return m ? Number(m[1]) : null;
+      }),
+      idle: doc.querySelector('#kernel_indicator_icon')?.classList.contains('kernel_idle_icon') ?? false,
+      // tslab writes errors to stderr; the classic interface marks JavaScript output errors with .js-error
+      errorOutputs: doc.querySelectorAll('.output_stderr, .output_error, .js-error').length,
+      charts: cells.map((c) =>
+        (Array.from(c.querySelectorAll('.quadrat-live-chart')) as any[]).map((box) => box.querySelector('svg.marks')?.outerHTML ?? ''),
+      ),
+    };
+  });
+}
+
+/** Run all cells from the Cell menu and wait until every code cell has a new number and the kernel is idle. */
+async function runAll(page: Page, after: number): Promise<PageState> {
+  await page.click('#celllink');
+  await page.click('#run_all_cells > a');
+  let state = await readState(page);
+  await waitUntil(
+    'every code cell to finish with the kernel idle',
+    async () => {
+      state = await readState(page);
+      return state.idle && state.prompts.every((n) => n !== null && n > after);
+    },
+    RUN_ALL_TIMEOUT_MS,
+  );
+  // vega-embed draws asynchronously after the output arrives
+  await waitUntil(
+    'every live chart to be drawn',
+    async () => {
+      state = await readState(page);
+      return state.charts.every((boxes) => boxes.every((svg) => svg !== ''));
+    },
+    20_000,
+  );
+  return state;
+}
+
+describe('tools', () => {
+  it('jupyter-notebook and Chromium are available under CI', () => {
+    if (!process.env.CI) return;
+    expect(serverWorks, `${SERVER} --version must work in CI`).toBe(true);
+    expect(chromiumWorks, `${CHROMIUM} must exist in CI`).toBe(true);
+  });
+});
+
+describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the classic Notebook interface', () => {
+  it(
+    'runs every cell, draws every chart live, redraws them after the seed is edited, and ends the kernel with the server',
+    async () => {
+      const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'quadrat-browser-'));
+      const dirs = Object.fromEntries(
+        ['config', 'data', 'runtime', 'home', 'notebooks', 'out'].map((d) => [d, path.join(tmp, d)]),
+      ) as Record<string, string>;
+      for (const d of Object.values(dirs)) fs.mkdirSync(d);
+      fs.copyFileSync(path.join(ROOT, 'notebooks', NOTEBOOK), path.join(dirs.notebooks, NOTEBOOK));
+      const notebook = JSON.parse(fs.readFileSync(path.join(dirs.notebooks, NOTEBOOK), 'utf8')) as {
+        cells: { cell_type: string; source: string | string[] }[];
+      };
+      const codeSources = notebook.cells.filter((c) => c.cell_type === 'code').map((c) => [c.source].flat().join(''));
+      const seedMatch = /const SEED = (\d+);/.exec(codeSources[0]);
+      expect(seedMatch, `the settings cell (first code cell) of ${NOTEBOOK} sets "const SEED = <number>;"`).not.toBeNull();
+      const chartCells = codeSources.map((s, i) => (s.includes('showChart') ? i : -1)).filter((i) => i >= 0);
+      expect(chartCells.length).toBeGreaterThan(0);
+
+      const { kernelName } = registerKernel(dirs.data);
+      expect(kernelName).toBe('quadrat-ts');
+      const port = await freePort();
+      const token = randomBytes(16).toString('hex');
+      const env: NodeJS.ProcessEnv = {
+        ...process.env,
+        HOME: dirs.home,
+        JUPYTER_CONFIG_DIR: dirs.config,
+        JUPYTER_DATA_DIR: dirs.data,
+        JUPYTER_PATH: dirs.data,
+        JUPYTER_RUNTIME_DIR: dirs.runtime,
+        IPYTHONDIR: path.join(dirs.home, '.ipython'),
+        QUADRAT_OUT: dirs.out,
+      };
+      delete env.QUADRAT_HTML_RENDER;
+
+      let server: ChildProcess | null = null;
+      let serverLog = '';
+      let browser: Browser | null = null;
+      const started = Date.now();
+      try {
+        server = spawn(
+          SERVER,
+          [
+            '--no-browser',
+            '--ip=127.0.0.1',
+            `--port=${port}`,
+            '--port-retries=0',
+            `--notebook-dir=${dirs.notebooks}`,
+            `--NotebookApp.token=${token}`,
+            // CI containers run as root, which the server refuses unless told
+            ...(process.getuid?.() === 0 ? ['--allow-root'] : []),
+          ],
+          { cwd: dirs.notebooks, env, detached: true, stdio: ['ignore', 'pipe', 'pipe'] },
+        );
+        server.stdout!.on('data', (d) => (serverLog += d));
+        server.stderr!.on('data', (d) => (serverLog += d));
+        const base = `http://127.0.0.1:${port}`;
+        await waitUntil(
+          'the Notebook server to answer',
+          async () => {
+            if (server!.exitCode !== null) throw new Error(`${SERVER} ended early (exit ${server!.exitCode}):\n${serverLog}`);
+            try {
+              return (await fetch(`${base}/api/status?token=${token}`)).ok;
+            } catch {
+              return false;
+            }
+          },
+          60_000,
+        );
+
+        browser = await chromium.launch({ executablePath: CHROMIUM, headless: true, args: ['--no-sandbox', '--disable-gpu'] });
+        const page = await browser.newPage({ viewport: { width: 1280, height: 1000 } });
+        const pageErrors: string[] = [];
+        page.on('pageerror', (err) => pageErrors.push(String(err)));
+        await page.goto(`${base}/notebooks/${NOTEBOOK}?token=${token}`);
+        await page.waitForSelector('#kernel_indicator_icon.kernel_idle_icon', { timeout: 60_000 });
+        expect(await page.textContent('.kernel_indicator_name')).toContain('TypeScript (Quadrat)');
+
+        const lap = (what: string) => console.log(`${what}: ${((Date.now() - started) / 1000).toFixed(1)} s`);
+        lap('kernel ready');
+        const first = await runAll(page, 0);
+        lap('first run');
+        expect(first.prompts).toHaveLength(codeSources.length);
+        expect(first.errorOutputs, 'no error output after the first run').toBe(0);
+        for (const i of chartCells) {
+          // Live charts: vega-embed replaced the static picture by an SVG view in each chart output.
+          expect(first.charts[i].length, `code cell ${i + 1} shows its charts`).toBeGreaterThan(0);
+          for (const svg of first.charts[i]) expect(svg).toMatch(/role="graphics-symbol"|aria-roledescription/);
+        }
+        const livePictures = await page.locator('.quadrat-live-chart > img').count();
+        expect(livePictures, 'no static picture is left in place of a live chart').toBe(0);
+        // The vega libraries came with the first chart of the session only.
+        const withLibraries = await page.evaluate(
+          () => ((globalThis as any).Jupyter.notebook.get_cells() as any[])
+            .flatMap((c) => c.output_area?.outputs ?? [])
+            .filter((o: any) => String(o.data?.['application/javascript'] ?? '').includes('vegaEmbed=')).length,
+        );
+        expect(withLibraries).toBe(1);
+
+        // Edit the seed in the settings cell as a user would: select the number, type another.
+        const seed = Number(seedMatch![1]);
+        const settings = page.locator('#notebook-container .cell.code_cell').first();
+        const seedLine = settings.locator('.CodeMirror-line', { hasText: 'const SEED' });
+        await seedLine.locator('.cm-number').first().dblclick();
+        await page.keyboard.type(String(seed + 1));
+        expect(await seedLine.textContent()).toContain(`const SEED = ${seed + 1};`);
+
+        const before = Math.max(...first.prompts.map((n) => n ?? 0));
+        const second = await runAll(page, before);
+        lap('second run');
+        expect(second.errorOutputs, 'no error output after the edit').toBe(0);
+        for (const i of chartCells) {
+          // (the number of charts may change: a fit on other data can end singular, for example)
+          expect(second.charts[i].length, `code cell ${i + 1} shows its charts again`).toBeGreaterThan(0);
+          expect(second.charts[i].join('\n'), `the charts of code cell ${i + 1} changed with the seed`).not.toBe(first.charts[i].join('\n'));
+        }
+        expect(pageErrors).toEqual([]);
+
+        fs.mkdirSync(ARTIFACTS, { recursive: true });
+        // The notebook scrolls inside #site; let the page grow so that one screenshot holds it all.
+        await page.addStyleTag({ content: '#site { height: auto !important; overflow: visible !important; }' });
+        await page.screenshot({ path: path.join(ARTIFACTS, 'notebook-browser.png'), fullPage: true });
+
+        // Stop the server as a user does (SIGTERM to its process group); its kernel must end with it.
+        const kernels = processesMentioning(dirs.runtime);
+        expect(kernels.length, 'one kernel process runs the notebook').toBe(1);
+        await browser.close();
+        browser = null;
+        const serverPid = server.pid!;
+        process.kill(-serverPid, 'SIGTERM');
+        await waitUntil('the server to stop', () => server!.exitCode !== null || server!.signalCode !== null, 30_000);
+        await waitUntil('the kernel to end', () => kernels.every((pid) => !alive(pid)), 15_000);
+        expect(processesMentioning(dirs.runtime)).toEqual([]);
+        console.log(`notebook in the browser: ${((Date.now() - started) / 1000).toFixed(1)} s`);
+      } finally {
+        if (browser) await browser.close().catch(() => undefined);
+        if (server?.pid !== undefined) await stopGroup(server.pid, 5_000);
+        // The kernel runs in a session of its own: stop what is left of it too.
+        for (const pid of processesMentioning(dirs.runtime)) await stopGroup(pid, 2_000);
+        fs.rmSync(tmp, { recursive: true, force: true });
+      }
+    },
+    TEST_TIMEOUT_MS,
+  );
+});

@@ -9,9 +9,9 @@
  * - `application/javascript` (live front ends only, not while scripts/render-notebook.js renders):
  *   the classic Notebook interface has no Vega-Lite renderer and runs this first; it puts the
  *   picture in the output and replaces it by a live vega-embed view. JupyterLab ranks JavaScript
- *   below Vega-Lite and Markdown, so it keeps drawing the chart itself. Untrusted outputs (a
- *   notebook opened from elsewhere) are not run by the classic Notebook, which then shows the
- *   Markdown picture.
+ *   below Vega-Lite and Markdown, so it keeps drawing the chart itself. The classic Notebook
+ *   runs no script of untrusted saved outputs (nor does it show their Markdown): the text line
+ *   shows until the cell is run again.
  * With `interactive: true` and only while scripts/render-notebook.js renders the notebook,
  * a `text/html` entry is added (nbconvert prefers it): the same picture, replaced on page load
  * by a vega-embed view. The vega scripts are inlined once per kernel process (see vega-libraries),

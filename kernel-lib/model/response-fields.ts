@@ -11,6 +11,8 @@ const INTEGRATIONS: readonly Integration[] = ['laplace', 'quadrature'];
 /** Default adaptive Gauss-Hermite nodes (Pinheiro and Bates 1995 found a handful of nodes ample for one random intercept). */
 const DEFAULT_NODES = 9;
 const MAX_NODES = 50;
+/** Interval methods of the count and detection families: Wald z (default), profile likelihood, parametric bootstrap. */
+const COUNT_INTERVALS = ['wald', 'profile', 'bootstrap'] as const;
 
 export interface ResponseFields {
   family: ResponseFamilyName;
@@ -27,7 +29,7 @@ function fail(message: string, field: string): never {
 /**
  * Parse the response fields of a model object. `estimation` and `interval` are the raw values
  * given (undefined when left to the default), because their defaults depend on the family:
- * a non-normal family is fitted by ML with Wald z intervals.
+ * a non-normal family is fitted by ML with Wald z intervals unless profile or bootstrap is asked for.
  */
 export function parseResponseFields(
   obj: Record<string, unknown>, path: string, response: string, groups: GroupSpec[],
@@ -50,10 +52,10 @@ export function parseResponseFields(
     fail(`${path}.estimation: the "${name}" family is fitted by maximum likelihood; REML is defined for normal responses only: use "ML" or leave it out`, `${path}.estimation`);
   }
   out.estimation = 'ML';
-  if (obj.interval !== undefined && obj.interval !== 'wald') {
-    fail(`${path}.interval: the "${name}" family has Wald z intervals ("wald"); ${describeValue(obj.interval)} is available for normal responses only`, `${path}.interval`);
+  if (obj.interval !== undefined && !(COUNT_INTERVALS as readonly unknown[]).includes(obj.interval)) {
+    fail(`${path}.interval: the "${name}" family has ${COUNT_INTERVALS.map((m) => `"${m}"`).join(', ')} intervals; ${describeValue(obj.interval)} is available for normal responses only`, `${path}.interval`);
   }
-  out.interval = 'wald';
+  out.interval = (obj.interval as string | undefined) ?? 'wald';
   if (obj.trials !== undefined) {
     if (name !== 'binomial') fail(`${path}.trials: only used with the "binomial" family`, `${path}.trials`);
     const t = obj.trials;

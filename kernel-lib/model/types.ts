@@ -61,7 +61,7 @@ export interface ModelSpec {
   /**
    * Default 'gaussian'. 'poisson' and 'negative-binomial' (NB2, variance μ + μ²/k) for counts, log
    * link; 'binomial' for detections (successes out of `trials`), logit link. Non-normal families are
-   * fitted by ML with Wald z intervals.
+   * fitted by ML with Wald z intervals by default ('profile' and 'bootstrap' also apply).
    */
   family?: ResponseFamilyName;
   /** Binomial only: a column of trial counts or one positive whole number. Default 1 (presence/absence). */

@@ -28,6 +28,14 @@ describe('model response fields (family, trials, offset, integration, nodes)', (
     expect(parseModel(modelToJson(q))).toEqual(q);
   });
 
+  it('count and detection families also take profile-likelihood and bootstrap intervals, kept in the JSON', () => {
+    for (const interval of ['profile', 'bootstrap']) {
+      const m = parseModel({ response: 'n', family: 'poisson', interval, groups: [site] });
+      expect(m.interval).toBe(interval);
+      expect(parseModel(modelToJson(m))).toEqual(m);
+    }
+  });
+
   it('names the field of every misuse', () => {
     expect(fieldOf(() => parseModel({ response: 'n', family: 'gamma' }))).toBe('model.family');
     expect(fieldOf(() => parseModel({ response: 'n', family: 'poisson', estimation: 'REML' }))).toBe('model.estimation');

@@ -9,6 +9,7 @@ import { estimateCountModel } from './count-model';
 import { termCovariances } from './normal';
 import { aliasReasons } from '../alias-reasons';
 import type { CountFamily } from './glm-response';
+import { countContext, countIntervals } from '../inference/count-intervals';
 import type { Estimate, EstimateStep, TermCovariance } from './types';
 
 /** Pearson χ²/df above this is reported as overdispersion (a rule of thumb: common practice, no source). */
@@ -16,10 +17,11 @@ const OVERDISPERSION_WARNING = 1.5;
 
 export function countEstimateStep(family: CountFamily): EstimateStep {
   return (design: DesignMatrices, options): Estimate => {
-    const est = estimateCountModel(design, {
+    const fitOptions = {
       family, trials: design.trials, offset: design.offset, integration: options.integration, nodes: options.nodes,
       aliasPriority: options.priority,
-    });
+    };
+    const est = estimateCountModel(design, fitOptions);
     const warnings: string[] = [];
     if (!est.converged) warnings.push(`did not converge: ${est.reason || 'the optimiser stopped early'}`);
     warnings.push(...est.warnings);
@@ -46,6 +48,7 @@ export function countEstimateStep(family: CountFamily): EstimateStep {
       terms: linkScaleCovariances(design, est), modes: options.modes ? modeRows(design, est) : [],
       fitted: options.fitted ? est.mu : new Float64Array(0), response,
       extraParameters: family === 'negative-binomial' ? 1 : 0,
+      smallSample: (method, level, bootstrap) => countIntervals(countContext(design, fitOptions, est), method, level, bootstrap),
     };
   };
 }

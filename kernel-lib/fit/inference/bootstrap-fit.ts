@@ -7,7 +7,8 @@ import type { DesignMatrices } from '../../data/design-matrices';
 import type { FitResult } from '../result';
 import { QuadratInputError } from '../../model/errors';
 import { contextFromFit } from './context';
-import { BOOTSTRAP_DEFAULTS, bootstrapWidth, summariseBootstrap, type BootstrapSummary } from './bootstrap';
+import { BOOTSTRAP_DEFAULTS, modelBootstrapWidth, summariseBootstrap, type BootstrapSummary } from './bootstrap';
+import { countBootstrapModel, countContextFromFit } from './count-intervals';
 import { runBootstrapParallel } from './bootstrap-pool';
 import { bootstrapModel, type BootstrapSettings } from './intervals';
 
@@ -28,13 +29,25 @@ export async function bootstrapFit(
     throw new QuadratInputError(`bootstrap.resamples: expected a whole number ≥ 1, got ${resamples}`, { field: 'bootstrap.resamples' });
   }
   if (!(level > 0 && level < 1)) throw new QuadratInputError(`bootstrap.level: expected a number strictly between 0 and 1, got ${level}`, { field: 'bootstrap.level' });
-  const ctx = contextFromFit(design, fit);
-  const model = bootstrapModel(ctx, options.seed ?? BOOTSTRAP_DEFAULTS.seed);
+  if (fit.failure) throw new QuadratInputError(`fit: the fit produced no estimates (${fit.failure}); nothing to resample`, { field: 'fit' });
+  const seed = options.seed ?? BOOTSTRAP_DEFAULTS.seed;
+  let model;
+  let columns: number[];
+  if (fit.response) {
+    // count and detection fits: the estimates are read back from the result
+    const ctx = countContextFromFit(design, fit);
+    model = countBootstrapModel(ctx, seed);
+    columns = ctx.estimate.estimable;
+  } else {
+    const ctx = contextFromFit(design, fit);
+    model = bootstrapModel(ctx, seed);
+    columns = ctx.columns;
+  }
   const samples = await runBootstrapParallel(model, resamples, { workers: options.workers, onProgress: options.onProgress });
-  const summary = summariseBootstrap(samples, bootstrapWidth(ctx.design), level);
-  const p = ctx.design.p;
+  const summary = summariseBootstrap(samples, modelBootstrapWidth(model), level);
+  const p = model.design.p;
   const fixed = fit.fixed.map((r) => ({ ...r }));
-  ctx.columns.forEach((j, a) => Object.assign(fixed[j], { df: NaN, method: 'bootstrap', ...summary.intervals[a] }));
+  columns.forEach((j, a) => Object.assign(fixed[j], { df: NaN, method: 'bootstrap', ...summary.intervals[a] }));
   const random = fit.random.map((r, i) => ({ ...r, ...summary.intervals[p + i] }));
   return { fit: { ...fit, fixed, random, warnings: [...fit.warnings, ...summary.warnings] }, summary };
 }

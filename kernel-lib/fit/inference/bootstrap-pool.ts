@@ -6,7 +6,7 @@ import { existsSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
-import { bootstrapWidth, runBootstrapInThread, type BootstrapModel } from './bootstrap';
+import { modelBootstrapWidth, runBootstrapInThread, type BootstrapModel } from './bootstrap';
 import type { BootstrapReply, BootstrapTask } from './bootstrap-worker';
 
 /** Resamples per task handed to a worker. */
@@ -34,7 +34,7 @@ export async function runBootstrapParallel(model: BootstrapModel, resamples: num
   if (workers === 1 || (resamples < MIN_PARALLEL && options.workers === undefined)) {
     return runBootstrapInThread(model, resamples, options.onProgress);
   }
-  const width = bootstrapWidth(model.design);
+  const width = modelBootstrapWidth(model);
   const out = new Float64Array(resamples * width);
   const tasks: BootstrapTask[] = [];
   for (let from = 0; from < resamples; from += CHUNK) tasks.push({ from, to: Math.min(resamples, from + CHUNK) });

@@ -1,6 +1,6 @@
 /** Worker-thread entry: runs ranges of bootstrap resamples of one model and sends the results back. */
 import { parentPort, workerData } from 'node:worker_threads';
-import { BootstrapRunner, type BootstrapModel } from './bootstrap';
+import { createBootstrapRunner, type BootstrapModel } from './bootstrap';
 
 export interface BootstrapTask {
   from: number;
@@ -11,7 +11,7 @@ export type BootstrapReply = { from: number; to: number; results: Float64Array }
 
 if (parentPort) {
   const port = parentPort;
-  const runner = new BootstrapRunner((workerData as { model: BootstrapModel }).model);
+  const runner = createBootstrapRunner((workerData as { model: BootstrapModel }).model);
   port.on('message', (task: BootstrapTask) => {
     try {
       const results = runner.run(task.from, task.to);

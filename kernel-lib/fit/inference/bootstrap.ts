@@ -11,6 +11,7 @@ import type { DesignMatrices } from '../../data/design-matrices';
 import { ProfiledDeviance } from '../profiled-deviance';
 import { optimiseTheta } from '../optimise-theta';
 import { createStream } from '../../random/stream';
+import { CountBootstrapRunner, countBootstrapWidth, type CountResampling } from './count-bootstrap';
 
 export const BOOTSTRAP_DEFAULTS = { resamples: 999, seed: 1 };
 
@@ -23,6 +24,8 @@ export interface BootstrapModel {
   theta: Float64Array;
   sigma: number;
   seed: number | string;
+  /** Count and detection fits: family, trials, offset, integration and k (./count-bootstrap); sigma is unused. */
+  count?: CountResampling;
 }
 
 /**
@@ -33,8 +36,20 @@ export function bootstrapWidth(design: DesignMatrices): number {
   return design.p + design.random.reduce((s, t) => s + t.terms.length, 0) + 1;
 }
 
+/** Row width of a model's resamples (count fits have no residual SD). */
+export function modelBootstrapWidth(model: BootstrapModel): number {
+  return model.count ? countBootstrapWidth(model.design) : bootstrapWidth(model.design);
+}
+
+/** The runner of a model's resamples: normal or count. */
+export function createBootstrapRunner(model: BootstrapModel): { width: number; run(from: number, to: number): Float64Array } {
+  return model.count
+    ? new CountBootstrapRunner(model.design, model.beta, model.theta, model.seed, model.count)
+    : new BootstrapRunner(model);
+}
+
 /** Runs resamples of one fitted model; reuses one engine instance across resamples. */
-export class BootstrapRunner {
+class BootstrapRunner {
   private readonly dev: ProfiledDeviance;
   private readonly mean: Float64Array;
   private readonly ystar: Float64Array;
@@ -183,7 +198,7 @@ export function summariseBootstrap(samples: Float64Array, width: number, level: 
 
 /** Run every resample in this thread. */
 export function runBootstrapInThread(model: BootstrapModel, resamples: number, onProgress?: (done: number, total: number) => void): Float64Array {
-  const runner = new BootstrapRunner(model);
+  const runner = createBootstrapRunner(model);
   const out = new Float64Array(resamples * runner.width);
   const chunk = 50;
   for (let from = 0; from < resamples; from += chunk) {

@@ -41,7 +41,7 @@ const MAX_EXPANSION = 2 ** 20;
  * Limits where ζ(v) = ±z. `zeta` returns the signed root; the search starts at estimate ± scale and
  * doubles the step until ζ crosses. With `floorZero`, v stays ≥ 0.
  */
-function profileLimits(
+export function profileLimits(
   zeta: (v: number) => number, estimate: number, scale: number, z: number, floorZero: boolean, what: string,
 ): ProfileInterval {
   const warnings: string[] = [];
@@ -77,7 +77,7 @@ function profileLimits(
 }
 
 /** z with z² = χ²₁ quantile at the level. */
-function cutoff(level: number): number {
+export function profileCutoff(level: number): number {
   return normalQuantile(0.5 + level / 2);
 }
 
@@ -108,7 +108,7 @@ function mlOptimum(ctx: InferenceContext): MlOptimum {
 
 /** Profile intervals for every estimable fixed effect (ML criterion). */
 export function profileFixedEffects(ctx: InferenceContext, level: number): ProfileInterval[] {
-  const z = cutoff(level);
+  const z = profileCutoff(level);
   const ml = mlOptimum(ctx);
   const { design } = ctx;
   const { n, p, X, y } = design;
@@ -149,7 +149,7 @@ export function profileFixedEffects(ctx: InferenceContext, level: number): Profi
 // the Cholesky factor of the correlation matrix, row i = (wᵢ₁, …, wᵢ,ᵢ₋₁, 1)/‖·‖ (any real w gives a
 // valid correlation matrix; Pinheiro and Bates 1996, Statistics and Computing 6:289).
 
-interface SdLayout {
+export interface SdLayout {
   /** φ index of tᵢ for each θ-template row, per engine term: tIndex[s][i]. */
   tIndex: number[][];
   /** φ index of w for correlated terms: wIndex[s][i][j] (j < i). */
@@ -157,7 +157,7 @@ interface SdLayout {
   size: number;
 }
 
-function sdLayout(dev: ProfiledDeviance): SdLayout {
+export function sdLayout(dev: ProfiledDeviance): SdLayout {
   let next = 1;
   const tIndex = dev.terms.map((t) => Array.from({ length: t.k }, () => next++));
   const wIndex = dev.terms.map((t) =>
@@ -166,7 +166,7 @@ function sdLayout(dev: ProfiledDeviance): SdLayout {
 }
 
 /** θ from φ (σ not involved: T carries ratios to σ). */
-function thetaFromSd(dev: ProfiledDeviance, layout: SdLayout, phi: ArrayLike<number>, out: Float64Array): void {
+export function thetaFromSd(dev: ProfiledDeviance, layout: SdLayout, phi: ArrayLike<number>, out: Float64Array): void {
   dev.terms.forEach((t, s) => {
     const k = t.k;
     if (!t.term.correlated) {
@@ -188,7 +188,7 @@ function thetaFromSd(dev: ProfiledDeviance, layout: SdLayout, phi: ArrayLike<num
 }
 
 /** φ̂ from θ̂ and σ̂. */
-function sdFromTheta(dev: ProfiledDeviance, layout: SdLayout, theta: ArrayLike<number>, sigma: number): Float64Array {
+export function sdFromTheta(dev: ProfiledDeviance, layout: SdLayout, theta: ArrayLike<number>, sigma: number): Float64Array {
   const phi = new Float64Array(layout.size);
   phi[0] = Math.log(sigma);
   dev.setTheta(theta);
@@ -282,7 +282,7 @@ function isT(layout: SdLayout, i: number): boolean {
 
 /** Profile interval for one variance target on the SD (or SD-ratio) scale. */
 export function profileVariance(ctx: InferenceContext, target: VarianceTarget, level: number, label: string): ProfileInterval {
-  const z = cutoff(level);
+  const z = profileCutoff(level);
   const prof = varianceProfile(ctx, target);
   const dHat = target.kind === 'ratio' ? ctx.dev.evaluate(ctx.theta) : unprofiledDeviance(ctx.dev, ctx.theta, ctx.sigma2);
   const est = prof.estimate;

@@ -86,10 +86,4 @@ describe('profile intervals for count fits', () => {
     expect(fit.random[0].upper!).toBeGreaterThan(fit.random[0].sd);
     expect(fit.warnings.some((w) => /sd\(g\).*lower limit is the boundary 0/.test(w))).toBe(true);
   });
-
-  it('a count fit refuses the small-sample t methods, naming model.interval', () => {
-    for (const interval of ['satterthwaite', 'kenward-roger', 'residual-t']) {
-      expect(() => fitModel(table('poisson-groups'), { ...poisson, interval: interval as ModelSpec['interval'] })).toThrow(/model\.interval/);
-    }
-  });
 });

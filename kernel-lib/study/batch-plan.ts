@@ -23,6 +23,10 @@ export interface Shard {
 }
 
 export function planBatches(scenarios: number, replicates: number, batchSize: number): Batch[] {
+  // the size comes from study.json when resuming or merging: a hand-edited 0 would never end the loop
+  if (!(Number.isInteger(batchSize) && batchSize >= 1)) {
+    throw new QuadratInputError(`batch size: expected a whole number ≥ 1, got ${batchSize}`, { field: 'batchSize' });
+  }
   const out: Batch[] = [];
   for (let s = 0; s < scenarios; s++) {
     for (let b = 0, from = 0; from < replicates; b++, from += batchSize) {

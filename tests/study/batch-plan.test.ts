@@ -27,6 +27,11 @@ describe('planBatches', () => {
     expect(planBatches(2, 0, 25)).toEqual([]);
   });
 
+  it('refuses a batch size that is not a whole number ≥ 1 (read back from study.json) instead of looping', () => {
+    for (const bad of [0, -5, 2.5, NaN, undefined as unknown as number]) {
+      expect(inputError(() => planBatches(1, 10, bad)).field).toBe('batchSize');
+    }
+  });
 });
 
 describe('batchesOfShard', () => {

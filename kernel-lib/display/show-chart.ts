@@ -6,36 +6,31 @@
  * - `text/markdown` with an `<img>` of the SVG as a data URI: nbconvert's HTML keeps this,
  *   whereas it strips `image/svg+xml` outputs;
  * - `text/plain`: a one-line description for plain consoles.
- * - `application/javascript` (live front ends only, not while scripts/render-notebook.js renders):
- *   the classic Notebook interface has no Vega-Lite renderer and runs this first; it puts the
- *   picture in the output and replaces it by a live vega-embed view. JupyterLab ranks JavaScript
- *   below Vega-Lite and Markdown, so it keeps drawing the chart itself. The classic Notebook
- *   runs no script of untrusted saved outputs (nor does it show their Markdown): the text line
- *   shows until the cell is run again.
- * With `interactive: true` and only while scripts/render-notebook.js renders the notebook,
- * a `text/html` entry is added (nbconvert prefers it): the same picture, replaced on page load
- * by a vega-embed view. The vega scripts are inlined once per kernel process (see vega-libraries),
- * in the first chart that needs them: no network is used.
- * Outside tslab, a line is printed instead.
+ * - `text/html` (live sessions always; while scripts/render-notebook.js renders, only for charts
+ *   shown with `interactive: true`): the same picture, replaced by a vega-embed view when the
+ *   page runs its script. The classic Notebook interface, which has no Vega-Lite renderer, shows
+ *   this entry: a live chart when it trusts the output, the picture when it does not (it strips
+ *   the scripts of untrusted HTML). nbconvert prefers it too, hence only on request when rendering.
+ *   JupyterLab ranks HTML above Vega-Lite as well, and runs the script of trusted outputs.
+ * The vega scripts are inlined once per kernel process, in the first chart that carries this
+ * entry (see vega-libraries): no network is needed. Outside tslab, a line is printed instead.
  */
 import { escapeHtml, jsonForScript } from './escape-html';
 import { specToSvg, svgDataUri } from './spec-to-svg';
 import { type MimeBundle, displayBundle, insideTslab, renderingToHtml } from './tslab-bridge';
-import { claimLibraryInlining, vegaLibrariesCode, vegaLibrariesScript } from './vega-libraries';
+import { claimLibraryInlining, vegaLibrariesScript } from './vega-libraries';
 
 export const VEGA_LITE_MIME = 'application/vnd.vegalite.v5+json';
 
 export interface ShowChartOptions {
-  /** Add an interactive vega-embed view to the rendered HTML (JupyterLab is interactive anyway). */
+  /** Add the interactive vega-embed view to HTML rendered by scripts/render-notebook.js (live sessions always have it). */
   interactive?: boolean;
 }
 
 export interface ChartBundleOptions {
-  /** Include the `text/html` interactive view (for nbconvert's HTML). */
+  /** Include the `text/html` interactive view. */
   interactive: boolean;
-  /** Include the `application/javascript` live view (for the classic Notebook interface). */
-  live?: boolean;
-  /** Inline the vega scripts in that view (the first interactive or live chart of a session). */
+  /** Inline the vega scripts in that view (the first interactive chart of a document). */
   includeLibraries: boolean;
   /** Element id of the interactive view; unique within the document. */
   elementId: string;
@@ -68,7 +63,9 @@ export function chartBundle(spec: object, svg: string, options: ChartBundleOptio
     const id = escapeHtml(options.elementId);
     const embed =
       `<script>(function () {\n` +
-      `  var el = document.getElementById(${jsonForScript(options.elementId)});\n` +
+      // by id, or (a front end that runs the script before the output is in the page) beside the script
+      `  var el = document.getElementById(${jsonForScript(options.elementId)})\n` +
+      `    || (document.currentScript && document.currentScript.previousElementSibling);\n` +
       `  if (!el || typeof window.vegaEmbed !== 'function') return;\n` +
       `  var fallback = el.innerHTML;\n` +
       `  window.vegaEmbed(el, ${jsonForScript(spec)}, { renderer: 'svg', actions: false })\n` +
@@ -78,32 +75,7 @@ export function chartBundle(spec: object, svg: string, options: ChartBundleOptio
       (options.includeLibraries ? vegaLibrariesScript() + '\n' : '') +
       `<div id="${id}" class="quadrat-chart">${img}</div>\n${embed}`;
   }
-  if (options.live === true) bundle['application/javascript'] = liveChartScript(spec, img, options.includeLibraries);
   return bundle;
-}
-
-/**
- * JavaScript that draws the chart where it runs: `element` is the output area (a jQuery object
- * in the classic Notebook, a DOM element in nbconvert's HTML). The picture goes in first and
- * stays when vega-embed is missing or fails; the libraries are defined only when no earlier
- * output of the page defined them.
- */
-export function liveChartScript(spec: object, img: string, includeLibraries: boolean): string {
-  const libraries = includeLibraries ? `if (typeof window.vegaEmbed !== 'function') {\n${vegaLibrariesCode()}\n}\n` : '';
-  return (
-    `(function (host) {\n` +
-    `  if (host && host.jquery) host = host[0];\n` +
-    `  if (!host || !host.appendChild) return;\n` +
-    `  var box = document.createElement('div');\n` +
-    `  box.className = 'quadrat-chart quadrat-live-chart';\n` +
-    `  box.innerHTML = ${jsonForScript(img)};\n` +
-    `  host.appendChild(box);\n` +
-    libraries +
-    `  if (typeof window.vegaEmbed !== 'function') return;\n` +
-    `  window.vegaEmbed(box, ${jsonForScript(spec)}, { renderer: 'svg', actions: false })\n` +
-    `    .catch(function (err) { box.innerHTML = ${jsonForScript(img)}; console.error('vega-embed:', err); });\n` +
-    `})(typeof element === 'undefined' ? null : element);\n`
-  );
 }
 
 /**
@@ -112,14 +84,12 @@ export function liveChartScript(spec: object, img: string, includeLibraries: boo
  */
 export async function showChart(spec: object, options: ShowChartOptions = {}): Promise<void> {
   const svg = await specToSvg(spec);
-  const rendering = renderingToHtml();
-  const interactive = options.interactive === true && rendering;
-  const live = !rendering;
+  // A live session always gets the HTML view; a render only when asked (nbconvert prefers it to the picture).
+  const interactive = renderingToHtml() ? options.interactive === true : true;
   chartCounter += 1;
   const bundle = chartBundle(spec, svg, {
     interactive,
-    live,
-    includeLibraries: (interactive || live) && insideTslab() && claimLibraryInlining(),
+    includeLibraries: interactive && insideTslab() && claimLibraryInlining(),
     elementId: `quadrat-chart-${process.pid}-${chartCounter}`,
   });
   if (!displayBundle(bundle)) {

@@ -50,8 +50,9 @@ export function displayBundle(bundle: MimeBundle): boolean {
 
 /**
  * Whether this kernel runs under scripts/render-notebook.js, which sets QUADRAT_HTML_RENDER=1
- * for nbconvert and thereby for the kernel it starts. Only then is interactive HTML added to
- * chart outputs, because nbconvert shows `text/html` in preference to everything else.
+ * for nbconvert and thereby for the kernel it starts. Then interactive HTML is added only to
+ * charts that ask for it, because nbconvert shows `text/html` in preference to the picture; a
+ * live session (a person at the Notebook) gets it for every chart.
  */
 export function renderingToHtml(): boolean {
   return process.env.QUADRAT_HTML_RENDER === '1';

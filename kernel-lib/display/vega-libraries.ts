@@ -25,22 +25,12 @@ function minifiedBuild(packageName: string, file: string): string {
  * nbconvert's HTML), so `define`, `module` and `exports` are shadowed to force the globals.
  */
 export function vegaLibrariesScript(): string {
-  return `<script>\n${vegaLibrariesCode()}\n</script>`;
-}
-
-/**
- * The same code as plain JavaScript (no `<script>` element), for a JavaScript output that the
- * classic Notebook evaluates; `</script` stays escaped because nbconvert wraps such outputs in
- * a script element.
- */
-export function vegaLibrariesCode(): string {
-  return [
+  const parts = [
     minifiedBuild('vega', 'vega.min.js'),
     minifiedBuild('vega-lite', 'vega-lite.min.js'),
     minifiedBuild('vega-embed', 'vega-embed.min.js'),
-  ]
-    .map((code) => `(function (define, module, exports) {\n${code}\n}).call(window);`)
-    .join('\n');
+  ].map((code) => `(function (define, module, exports) {\n${code}\n}).call(window);`);
+  return `<script>\n${parts.join('\n')}\n</script>`;
 }
 
 /** True the first time it is called in this process, false afterwards. */

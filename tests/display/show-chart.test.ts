@@ -1,8 +1,6 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { chartBundle, describeSpec, showChart, specToSvg, svgDataUri, VEGA_LITE_MIME } from '../../kernel-lib/display/index';
-import { claimLibraryInlining, resetLibraryInlining, vegaLibrariesCode, vegaLibrariesScript } from '../../kernel-lib/display/vega-libraries';
-import { liveChartScript } from '../../kernel-lib/display/show-chart';
-import * as vm from 'node:vm';
+import { claimLibraryInlining, resetLibraryInlining, vegaLibrariesScript } from '../../kernel-lib/display/vega-libraries';
 import { insideTslab } from '../../kernel-lib/display/tslab-bridge';
 
 // Invented counts of quadrats per site.
@@ -78,70 +76,6 @@ describe('chartBundle', () => {
     expect(libs.match(/\(function \(define, module, exports\) \{/g)).toHaveLength(3);
     // The UMD headers of the three builds (vega, vega-lite, vega-embed) assign these globals.
     for (const global of ['.vega={}', '.vegaLite={}', '.vegaEmbed=']) expect(libs).toContain(global);
-  });
-});
-
-describe('live view for the classic Notebook interface', () => {
-  /** Run a JavaScript output as the classic Notebook does (eval with `element` in scope), against a minimal DOM. */
-  function runOutput(js: string, globals: Record<string, unknown>, element: unknown) {
-    const appended: { className: string; innerHTML: string }[] = [];
-    const host = { appendChild: (node: { className: string; innerHTML: string }) => appended.push(node) };
-    const window: Record<string, unknown> = { ...globals };
-    const context = vm.createContext({
-      window,
-      console: { error: () => undefined },
-      document: { createElement: () => ({ className: '', innerHTML: '' }) },
-      element: element === 'jquery' ? { jquery: '3.5', 0: host } : element === 'dom' ? host : undefined,
-    });
-    vm.runInContext(js, context);
-    return { appended, window };
-  }
-
-  it('adds a JavaScript entry only when asked, beside the entries other front ends use', async () => {
-    const svg = await specToSvg(barSpec);
-    const plain = chartBundle(barSpec, svg, { interactive: false, includeLibraries: false, elementId: 'c4' });
-    expect(plain['application/javascript']).toBeUndefined();
-    const live = chartBundle(barSpec, svg, { interactive: false, live: true, includeLibraries: false, elementId: 'c4' });
-    expect(Object.keys(live).sort()).toEqual(['application/javascript', VEGA_LITE_MIME, 'text/markdown', 'text/plain'].sort());
-    expect(live['text/markdown']).toBe(plain['text/markdown']);
-  });
-
-  it('puts the picture in the output area and hands the spec to vegaEmbed (jQuery or DOM element)', async () => {
-    const svg = await specToSvg(barSpec);
-    const img = `<img src="${svgDataUri(svg)}" alt="Chart: bar marks">`;
-    for (const element of ['jquery', 'dom']) {
-      const calls: unknown[][] = [];
-      const vegaEmbed = (...args: unknown[]) => {
-        calls.push(args);
-        return Promise.resolve();
-      };
-      const { appended } = runOutput(liveChartScript(barSpec, img, false), { vegaEmbed }, element);
-      expect(appended).toHaveLength(1);
-      expect(appended[0].className).toBe('quadrat-chart quadrat-live-chart');
-      expect(appended[0].innerHTML).toBe(img);
-      expect(calls).toHaveLength(1);
-      expect(calls[0][0]).toBe(appended[0]);
-      // (compared through JSON: the object comes from another realm)
-      expect(JSON.stringify(calls[0][1])).toBe(JSON.stringify(barSpec));
-    }
-  });
-
-  it('keeps the picture when vega-embed is not loaded, and does nothing without an output area', async () => {
-    const img = '<img src="data:image/svg+xml;base64,PHN2Zy8+" alt="Chart">';
-    const { appended } = runOutput(liveChartScript(barSpec, img, false), {}, 'dom');
-    expect(appended.map((n) => n.innerHTML)).toEqual([img]);
-    expect(runOutput(liveChartScript(barSpec, img, false), {}, undefined).appended).toEqual([]);
-  });
-
-  it('carries the libraries only when asked, guarded so that a page defines them once', () => {
-    const img = '<img alt="Chart">';
-    const withLibraries = liveChartScript(barSpec, img, true);
-    expect(withLibraries).toContain(vegaLibrariesCode());
-    expect(withLibraries).toContain("if (typeof window.vegaEmbed !== 'function') {");
-    expect(liveChartScript(barSpec, img, false)).not.toContain('.vegaEmbed=');
-    // nbconvert puts JavaScript outputs inside a <script> element: nothing may close it early
-    // (HTML Living Standard, script data state).
-    expect(liveChartScript({ ...barSpec, title: '</script>' }, img, true)).not.toMatch(/<\/script/i);
   });
 });
 

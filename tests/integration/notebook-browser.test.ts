@@ -12,7 +12,7 @@
  * stopped in `finally`, also when a check fails. A screenshot is kept in tests/artifacts/.
  * Skipped with a message when jupyter-notebook or Chromium is missing, except under CI.
  */
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { type ChildProcess, spawn, spawnSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as net from 'node:net';
@@ -23,6 +23,7 @@ import { chromium, type Browser, type Page } from 'playwright-core';
 
 const ROOT = path.resolve(__dirname, '..', '..');
 const NOTEBOOK = '02-one-dataset-both-ways.ipynb';
+const UNTRUSTED = 'received-copy.ipynb';
 const ARTIFACTS = path.join(ROOT, 'tests', 'artifacts');
 const CHROMIUM = '/usr/bin/chromium';
 const SERVER = 'jupyter-notebook';
@@ -104,6 +105,35 @@ async function stopGroup(pid: number, graceMs: number): Promise<void> {
   signal('SIGKILL');
 }
 
+/** What the test started, for the clean-up (also run after a timeout and at exit). */
+const started: { serverPid?: number; runtimeDir?: string; browser?: Browser; tmp?: string } = {};
+
+/** Stop the browser, the server's process group and any kernel left in our runtime folder; remove the temporary folder. */
+async function cleanUp(): Promise<void> {
+  const { browser, serverPid, runtimeDir, tmp } = started;
+  for (const key of Object.keys(started) as (keyof typeof started)[]) delete started[key];
+  if (browser) await browser.close().catch(() => undefined);
+  if (serverPid !== undefined) await stopGroup(serverPid, 5_000);
+  // The kernel runs in a session of its own: stop what is left of it too.
+  if (runtimeDir !== undefined) for (const pid of processesMentioning(runtimeDir)) await stopGroup(pid, 2_000);
+  if (tmp !== undefined) fs.rmSync(tmp, { recursive: true, force: true });
+}
+
+/** Last resort if the worker exits before the clean-up ran: kill synchronously. */
+process.once('exit', () => {
+  const kill = (pid: number) => {
+    for (const target of [-pid, pid]) {
+      try {
+        process.kill(target, 'SIGKILL');
+      } catch {
+        // gone
+      }
+    }
+  };
+  if (started.serverPid !== undefined) kill(started.serverPid);
+  if (started.runtimeDir !== undefined) processesMentioning(started.runtimeDir).forEach(kill);
+});
+
 /** State of the notebook as the page shows it: prompt numbers of code cells, kernel indicator, outputs. */
 interface PageState {
   prompts: (number | null)[];
@@ -126,7 +156,7 @@ function readState(page: Page): Promise<PageState> {
       // tslab writes errors to stderr; the classic interface marks JavaScript output errors with .js-error
       errorOutputs: doc.querySelectorAll('.output_stderr, .output_error, .js-error').length,
       charts: cells.map((c) =>
-        (Array.from(c.querySelectorAll('.quadrat-live-chart')) as any[]).map((box) => box.querySelector('svg.marks')?.outerHTML ?? ''),
+        (Array.from(c.querySelectorAll('.quadrat-chart')) as any[]).map((box) => box.querySelector('svg.marks')?.outerHTML ?? ''),
       ),
     };
   });
@@ -166,10 +196,13 @@ describe('tools', () => {
 });
 
 describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the classic Notebook interface', () => {
+  afterAll(cleanUp, 30_000);
+
   it(
     'runs every cell, draws every chart live, redraws them after the seed is edited, and ends the kernel with the server',
     async () => {
       const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'quadrat-browser-'));
+      started.tmp = tmp;
       const dirs = Object.fromEntries(
         ['config', 'data', 'runtime', 'home', 'notebooks', 'out'].map((d) => [d, path.join(tmp, d)]),
       ) as Record<string, string>;
@@ -203,7 +236,8 @@ describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the clas
       let server: ChildProcess | null = null;
       let serverLog = '';
       let browser: Browser | null = null;
-      const started = Date.now();
+      const startedAt = Date.now();
+      started.runtimeDir = dirs.runtime;
       try {
         server = spawn(
           SERVER,
@@ -219,6 +253,7 @@ describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the clas
           ],
           { cwd: dirs.notebooks, env, detached: true, stdio: ['ignore', 'pipe', 'pipe'] },
         );
+        started.serverPid = server.pid;
         server.stdout!.on('data', (d) => (serverLog += d));
         server.stderr!.on('data', (d) => (serverLog += d));
         const base = `http://127.0.0.1:${port}`;
@@ -236,6 +271,7 @@ describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the clas
         );
 
         browser = await chromium.launch({ executablePath: CHROMIUM, headless: true, args: ['--no-sandbox', '--disable-gpu'] });
+        started.browser = browser;
         const page = await browser.newPage({ viewport: { width: 1280, height: 1000 } });
         const pageErrors: string[] = [];
         page.on('pageerror', (err) => pageErrors.push(String(err)));
@@ -243,7 +279,7 @@ describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the clas
         await page.waitForSelector('#kernel_indicator_icon.kernel_idle_icon', { timeout: 60_000 });
         expect(await page.textContent('.kernel_indicator_name')).toContain('TypeScript (Quadrat)');
 
-        const lap = (what: string) => console.log(`${what}: ${((Date.now() - started) / 1000).toFixed(1)} s`);
+        const lap = (what: string) => console.log(`${what}: ${((Date.now() - startedAt) / 1000).toFixed(1)} s`);
         lap('kernel ready');
         const first = await runAll(page, 0);
         lap('first run');
@@ -254,13 +290,13 @@ describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the clas
           expect(first.charts[i].length, `code cell ${i + 1} shows its charts`).toBeGreaterThan(0);
           for (const svg of first.charts[i]) expect(svg).toMatch(/role="graphics-symbol"|aria-roledescription/);
         }
-        const livePictures = await page.locator('.quadrat-live-chart > img').count();
+        const livePictures = await page.locator('.quadrat-chart > img').count();
         expect(livePictures, 'no static picture is left in place of a live chart').toBe(0);
         // The vega libraries came with the first chart of the session only.
         const withLibraries = await page.evaluate(
           () => ((globalThis as any).Jupyter.notebook.get_cells() as any[])
             .flatMap((c) => c.output_area?.outputs ?? [])
-            .filter((o: any) => String(o.data?.['application/javascript'] ?? '').includes('vegaEmbed=')).length,
+            .filter((o: any) => String(o.data?.['text/html'] ?? '').includes('.vegaEmbed=')).length,
         );
         expect(withLibraries).toBe(1);
 
@@ -288,23 +324,47 @@ describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the clas
         await page.addStyleTag({ content: '#site { height: auto !important; overflow: visible !important; }' });
         await page.screenshot({ path: path.join(ARTIFACTS, 'notebook-browser.png'), fullPage: true });
 
+        // The same outputs in a notebook the interface does not trust (saved without its signature,
+        // as a notebook received from someone else): no script runs, each chart shows its picture.
+        await page.evaluate(() => (globalThis as any).Jupyter.notebook.save_notebook());
+        const api = (name: string) => `${base}/api/contents/${name}?token=${token}`;
+        const saved = (await (await fetch(api(NOTEBOOK))).json()) as {
+          content: { cells: { metadata: Record<string, unknown> }[]; metadata: Record<string, unknown> };
+        };
+        for (const cell of saved.content.cells) cell.metadata.trusted = false;
+        // Signatures are digests of the content: an identical copy would count as signed.
+        saved.content.metadata.title = 'A copy received by mail';
+        const put = await fetch(api(UNTRUSTED), {
+          method: 'PUT',
+          headers: { 'Content-Type': 'application/json' },
+          body: JSON.stringify({ type: 'notebook', format: 'json', content: saved.content }),
+        });
+        expect(put.ok).toBe(true);
+        const other = await browser.newPage({ viewport: { width: 1280, height: 1000 } });
+        other.on('pageerror', (err) => pageErrors.push(String(err)));
+        await other.goto(`${base}/notebooks/${UNTRUSTED}?token=${token}`);
+        await other.waitForSelector('#kernel_indicator_icon.kernel_idle_icon', { timeout: 60_000 });
+        expect(await other.evaluate(() => (globalThis as any).Jupyter.notebook.trusted)).toBe(false);
+        const untrusted = await readState(other);
+        const pictures = await other.locator('.quadrat-chart > img[src^="data:image/svg+xml;base64,"]').count();
+        expect(pictures, 'each chart shows its picture in the untrusted copy').toBe(second.charts.flat().length);
+        expect(untrusted.charts.flat().every((svg) => svg === ''), 'no live chart in the untrusted copy').toBe(true);
+        await other.close();
+        expect(pageErrors).toEqual([]);
+
         // Stop the server as a user does (SIGTERM to its process group); its kernel must end with it.
         const kernels = processesMentioning(dirs.runtime);
-        expect(kernels.length, 'one kernel process runs the notebook').toBe(1);
+        expect(kernels.length, 'one kernel process per opened notebook').toBe(2);
         await browser.close();
-        browser = null;
+        started.browser = undefined;
         const serverPid = server.pid!;
         process.kill(-serverPid, 'SIGTERM');
         await waitUntil('the server to stop', () => server!.exitCode !== null || server!.signalCode !== null, 30_000);
         await waitUntil('the kernel to end', () => kernels.every((pid) => !alive(pid)), 15_000);
         expect(processesMentioning(dirs.runtime)).toEqual([]);
-        console.log(`notebook in the browser: ${((Date.now() - started) / 1000).toFixed(1)} s`);
+        console.log(`notebook in the browser: ${((Date.now() - startedAt) / 1000).toFixed(1)} s`);
       } finally {
-        if (browser) await browser.close().catch(() => undefined);
-        if (server?.pid !== undefined) await stopGroup(server.pid, 5_000);
-        // The kernel runs in a session of its own: stop what is left of it too.
-        for (const pid of processesMentioning(dirs.runtime)) await stopGroup(pid, 2_000);
-        fs.rmSync(tmp, { recursive: true, force: true });
+        await cleanUp();
       }
     },
     TEST_TIMEOUT_MS,

@@ -4,7 +4,13 @@
  * likelihood integrated by the Laplace approximation (any grouping structure) or adaptive
  * Gauss-Hermite quadrature (one grouping factor with a random intercept).
  *
- * Optimisation, in two stages (Pinheiro and Bates 1995, J. Comput. Graph. Stat. 4:12, §4, on
+ * One random intercept (Laplace or quadrature): the approximated deviance and its exact gradient in
+ * (θ, β) come from ./quadrature-one-intercept.ts (the group modes solved inside by Newton's method),
+ * and (θ, β, log k) are optimised jointly by Newton's method with a finite-difference Hessian
+ * (numeric/newton.ts), started from the GLM and a moment estimate of θ. A few dozen deviance
+ * evaluations per fit.
+ *
+ * Other structures, in two stages (Pinheiro and Bates 1995, J. Comput. Graph. Stat. 4:12, §4, on
  * maximising the approximated likelihood; the first stage is the penalised quasi-likelihood fit of
  * Breslow and Clayton 1993, J. Am. Stat. Assoc. 88:9):
  *  1. over θ alone, with β and the modes u solved jointly by penalised IRLS at each θ. Cheap and
@@ -13,19 +19,25 @@
  *  2. over (θ, β, log k) jointly on the approximated likelihood itself, by bounded Nelder-Mead,
  *     starting from stage 1, with β measured in stage-1 standard errors so that one step size
  *     suits every coordinate. Only u is solved inside.
- * Random-effect SDs below BOUNDARY_TOLERANCE are tried at exactly zero (a singular fit, equal to
- * the GLM), as in the normal engine. The aggregation k of the negative binomial is estimated by
+ * Random-effect SDs below COUNT_BOUNDARY_TOLERANCE are tried at exactly zero (a singular fit, equal
+ * to the GLM), as in the normal engine. The aggregation k of the negative binomial is estimated by
  * ML with the other parameters (Brent on log k for a GLM).
+ *
+ * Everything that does not depend on the response (X's cross-products and aliasing, the restricted
+ * design, the GLM and quadrature workspaces) is kept per design object, so refitting a design with a
+ * new response (a study replicate, a bootstrap resample) allocates only the result.
  */
 import type { DesignMatrices } from '../../data/design-matrices';
 import { aliasingFromCrossProducts, restrictColumns } from '../aliasing';
 import { brentMinimise } from '../../numeric/brent';
 import { nelderMeadBounded } from '../../numeric/nelder-mead';
+import { newtonMinimise } from '../../numeric/newton';
 import { GlmResponse, type CountFamily } from './glm-response';
-import { GlmIrls } from './glm-irls';
+import { GlmIrls, type GlmOutcome } from './glm-irls';
+import type { EstimateOptions } from './types';
 import { LaplaceGeneral } from './laplace-general';
 import { OneInterceptQuadrature } from './quadrature-one-intercept';
-import { conditionalVarianceFactor, type ProfiledDeviance } from '../profiled-deviance';
+import { conditionalVarianceFactor, ProfiledDeviance } from '../profiled-deviance';
 
 export type Integration = 'laplace' | 'quadrature';
 
@@ -44,15 +56,17 @@ export interface CountFitOptions {
   /** Added to the linear predictor (e.g. log effort). Default 0. */
   offset?: Float64Array;
   /** Default 'laplace'. 'quadrature' needs exactly one random term with an intercept only. */
-  integration?: Integration;
+  integration?: EstimateOptions['integration'];
   /** Quadrature nodes (default 9); 1 is the Laplace approximation. */
-  nodes?: number;
+  nodes?: EstimateOptions['nodes'];
   /** Hold the NB aggregation k at this value instead of estimating it. */
   aggregation?: number;
   /** Hold θ at this value (engine order) and estimate β (and k) only. */
   theta?: ArrayLike<number>;
-  /** Column visiting order for aliasing detection. */
-  aliasPriority?: number[];
+  /** Column visiting order for aliasing detection (EstimateOptions.priority). */
+  priority?: EstimateOptions['priority'];
+  /** Starting θ (engine order), as EstimateOptions.start. */
+  start?: EstimateOptions['start'];
 }
 
 export interface CountEstimate {
@@ -83,7 +97,7 @@ export interface CountEstimate {
   /** Conditional modes b (engine term order) and their conditional SDs. */
   modes: Float64Array;
   modeSds: Float64Array;
-  /** Term layout for reporting SDs and modes (null for a GLM). */
+  /** Term layout for reporting SDs and modes (null for a GLM; built on first use for one random intercept). */
   layout: ProfiledDeviance | null;
   /** Numerical notes (e.g. k at the edge of its range). */
   warnings: string[];
@@ -93,25 +107,93 @@ export interface CountEstimate {
   residualDf: number;
 }
 
-/** Fit a count or detection model to design matrices. Never throws for numerical trouble. */
-export function estimateCountModel(full: DesignMatrices, options: CountFitOptions): CountEstimate {
+/** What a count fit keeps per design object: everything that does not depend on the response. */
+interface CountWorkspace {
+  family: CountFamily;
+  trials: Float64Array | undefined;
+  offsetSource: Float64Array | undefined;
+  priority: number[] | undefined;
+  n: number;
+  xtx: Float64Array;
+  alias: ReturnType<typeof aliasingFromCrossProducts>;
+  design: DesignMatrices;
+  offset: Float64Array;
+  response: GlmResponse;
+  glm: GlmIrls;
+  quad: OneInterceptQuadrature | null;
+  /** Per-observation scratch (GLM predictor, scores and weights for the starting θ). */
+  eta: Float64Array;
+  score: Float64Array;
+  weight: Float64Array;
+  /** Per-level sums of the same (one random intercept). */
+  levelScore: Float64Array;
+  levelWeight: Float64Array;
+  /** Term layout for reporting (built on first use: a one-intercept fit does not need it). */
+  layout: ProfiledDeviance | null;
+  inUse: boolean;
+}
+
+const workspaces = new WeakMap<DesignMatrices, CountWorkspace>();
+
+function samePriority(a: number[] | undefined, b: number[] | undefined): boolean {
+  if (a === undefined || b === undefined) return a === b;
+  return a.length === b.length && a.every((v, i) => v === b[i]);
+}
+
+/** The workspace kept for this design object when it matches (family, trials, offset, priority) and is free; else a new one. */
+function acquireWorkspace(full: DesignMatrices, options: CountFitOptions): CountWorkspace {
+  const kept = workspaces.get(full);
   const family = options.family;
+  if (
+    kept && !kept.inUse && kept.family === family && kept.trials === options.trials && kept.offsetSource === options.offset &&
+    kept.n === full.n && samePriority(kept.priority, options.priority)
+  ) {
+    kept.inUse = true;
+    return kept;
+  }
   const n = full.n;
-  const offset = options.offset ?? new Float64Array(n);
   const xtx = new Float64Array(full.p * full.p);
   for (let i = 0; i < n; i++) {
     for (let a = 0; a < full.p; a++) for (let b = 0; b <= a; b++) xtx[a * full.p + b] += full.X[i * full.p + a] * full.X[i * full.p + b];
   }
   for (let a = 0; a < full.p; a++) for (let b = a + 1; b < full.p; b++) xtx[a * full.p + b] = xtx[b * full.p + a];
-  const alias = aliasingFromCrossProducts(xtx, full.p, full.p, options.aliasPriority);
+  const alias = aliasingFromCrossProducts(xtx, full.p, full.p, options.priority);
   const design = restrictColumns(full, alias.estimable);
-  const p = design.p;
+  const offset = options.offset ?? new Float64Array(n);
   const response = new GlmResponse(family, n, options.trials);
-  response.setResponse(design.y);
+  const oneIntercept = design.random.length === 1 && design.random[0].terms.length === 1;
+  const ws: CountWorkspace = {
+    family, trials: options.trials, offsetSource: options.offset, priority: options.priority ? options.priority.slice() : undefined, n,
+    xtx, alias, design, offset, response, glm: new GlmIrls(design.X, design.p, offset, response),
+    quad: oneIntercept ? new OneInterceptQuadrature(design.X, design.p, offset, response, design.random[0]) : null,
+    eta: new Float64Array(n), score: new Float64Array(n), weight: new Float64Array(n),
+    levelScore: new Float64Array(oneIntercept ? design.random[0].levels.length : 0),
+    levelWeight: new Float64Array(oneIntercept ? design.random[0].levels.length : 0), layout: null, inUse: true,
+  };
+  // a busy workspace (a fit inside a fit of the same design) stays kept; the new one is used once
+  if (!kept || !kept.inUse) workspaces.set(full, ws);
+  return ws;
+}
+
+/** Fit a count or detection model to design matrices. Never throws for numerical trouble. */
+export function estimateCountModel(full: DesignMatrices, options: CountFitOptions): CountEstimate {
+  const ws = acquireWorkspace(full, options);
+  try {
+    return estimateWith(ws, full, options);
+  } finally {
+    ws.inUse = false;
+  }
+}
+
+function estimateWith(ws: CountWorkspace, full: DesignMatrices, options: CountFitOptions): CountEstimate {
+  const family = options.family;
+  const n = full.n;
+  const { alias, design, offset, response, glm, xtx } = ws;
+  const p = design.p;
+  response.setResponse(full.y);
   const nb = family === 'negative-binomial';
   const kFixed = options.aggregation;
   const estimateK = nb && kFixed === undefined;
-  const glm = new GlmIrls(design.X, p, offset, response);
 
   // the GLM: exact, and the start of a mixed model
   let k = nb ? kFixed ?? 1 : 1;
@@ -130,7 +212,7 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
   }
   const link = family === 'binomial' ? 'logit' : 'log';
   const base = {
-    family, link: link as 'log' | 'logit', estimable: alias.estimable, aliased: alias.aliased, xtx,
+    family, link: link as 'log' | 'logit', estimable: alias.estimable, aliased: alias.aliased, xtx: Float64Array.from(xtx),
   };
   if (design.random.length === 0) {
     const eta = new Float64Array(n);
@@ -146,29 +228,167 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
       pearsonChi2: pearson(response, mu, k), residualDf: n - p - kParams,
     };
   }
-
   const integration: Integration = options.integration ?? 'laplace';
   const nodes = integration === 'quadrature' ? options.nodes ?? 9 : 1;
+  if (ws.quad) return fitOneIntercept(ws, ws.quad, base, options, fitGlm, k, estimateK, glmEvaluations, integration, nodes);
+  return fitGeneral(ws, base, options, fitGlm, k, estimateK, glmEvaluations, integration, nodes);
+}
+
+type CountBase = Pick<CountEstimate, 'family' | 'link' | 'estimable' | 'aliased' | 'xtx'>;
+
+/**
+ * One grouping factor with a random intercept: Newton's method on (θ, β[, log k]) with the exact
+ * gradient of the approximated deviance (Laplace or adaptive quadrature). The deviance is even in θ,
+ * so θ runs over the real line and |θ| is reported; an SD that ends below the boundary tolerance is
+ * replaced by exactly zero (the GLM) when that is no worse.
+ */
+function fitOneIntercept(
+  ws: CountWorkspace, quad: OneInterceptQuadrature, base: CountBase, options: CountFitOptions, fitGlm: GlmOutcome,
+  kGlm: number, estimateK: boolean, glmEvaluations: number, integration: Integration, nodes: number,
+): CountEstimate {
+  const { design, response } = ws;
+  const { n, p } = design;
+  const nb = options.family === 'negative-binomial';
+  const thetaFixed = options.theta !== undefined;
+  const dTheta = thetaFixed ? 0 : 1;
+  const dim = dTheta + p + (estimateK ? 1 : 0);
+  let evaluations = glmEvaluations;
+  quad.reset();
+  const gradBuf = new Float64Array(1 + p);
+  const betaWork = new Float64Array(p);
+  let thetaNow = thetaFixed ? options.theta![0] : 0;
+  const unpack = (phi: ArrayLike<number>): number => {
+    if (!thetaFixed) thetaNow = phi[0];
+    for (let a = 0; a < p; a++) betaWork[a] = phi[dTheta + a];
+    return estimateK ? Math.exp(phi[dim - 1]) : kGlm;
+  };
+  const fg = (phi: Float64Array, g: Float64Array): number => {
+    evaluations++;
+    const kk = unpack(phi);
+    const v = quad.deviance(thetaNow, betaWork, kk, nodes, gradBuf);
+    if (!thetaFixed) g[0] = gradBuf[0];
+    for (let a = 0; a < p; a++) g[dTheta + a] = gradBuf[1 + a];
+    if (estimateK) {
+      // log k by a central difference (the gradient in (θ, β) is exact)
+      const h = 1e-5;
+      const lk = phi[dim - 1];
+      evaluations += 2;
+      g[dim - 1] = (quad.deviance(thetaNow, betaWork, Math.exp(lk + h), nodes) - quad.deviance(thetaNow, betaWork, Math.exp(lk - h), nodes)) / (2 * h);
+    }
+    return v;
+  };
+  const start = new Float64Array(dim);
+  const lower = new Float64Array(dim);
+  const upper = new Float64Array(dim);
+  if (!thetaFixed) {
+    start[0] = options.start && options.start.length === 1 && options.start[0] > 0 ? options.start[0] : momentTheta(ws, fitGlm.beta, kGlm);
+    lower[0] = -THETA_MAX;
+    upper[0] = THETA_MAX;
+  }
+  for (let a = 0; a < p; a++) { start[dTheta + a] = fitGlm.beta[a]; lower[dTheta + a] = -1e4; upper[dTheta + a] = 1e4; }
+  if (estimateK) { start[dim - 1] = Math.log(kGlm); lower[dim - 1] = LOG_K_MIN; upper[dim - 1] = LOG_K_MAX; }
+  const res = newtonMinimise(fg, start, lower, upper);
+  let converged = res.converged;
+  let reason = res.reason;
+  let k = unpack(res.x);
+  let theta = Math.abs(thetaNow);
+  const beta = Float64Array.from(betaWork);
+  let deviance = res.value;
+  // the boundary: at θ = 0 the approximation is exact and its maximum is the GLM
+  const glmDeviance = -2 * fitGlm.logLik;
+  if (!thetaFixed && fitGlm.converged && (theta < COUNT_BOUNDARY_TOLERANCE || !(deviance < glmDeviance)) && glmDeviance <= deviance + 1e-8) {
+    theta = 0;
+    beta.set(fitGlm.beta);
+    k = kGlm;
+    converged = true;
+    reason = '';
+  }
+  // modes, covariance and fitted values at the estimate
+  evaluations++;
+  deviance = quad.deviance(theta, beta, k, nodes);
+  if (!Number.isFinite(deviance)) {
+    converged = false;
+    reason = reason || 'the approximated likelihood could not be evaluated';
+    deviance = NaN;
+  }
+  const modeSds = new Float64Array(quad.m);
+  const modes = Float64Array.from(quad.modes, (u) => theta * u);
+  const cov = quad.fixedCovariance(theta, beta, k, modeSds);
+  const eta = quad.predictor(theta, beta);
+  const mu = new Float64Array(n);
+  response.kernel(eta, k, 0, n, mu, null, null, null);
+  return {
+    ...base, integration, nodes, beta, cov, theta: Float64Array.of(theta), aggregation: nb ? k : NaN, logLik: -deviance / 2, converged,
+    singular: theta < COUNT_BOUNDARY_TOLERANCE, reason, evaluations, eta, mu, modes, modeSds,
+    get layout(): ProfiledDeviance {
+      if (!ws.layout) ws.layout = new ProfiledDeviance({ ...design, p: 0, X: new Float64Array(0), fixedNames: [], roles: [] }, false);
+      return ws.layout;
+    },
+    warnings: kWarning(estimateK, k), pearsonChi2: pearson(response, mu, k), residualDf: n - p - dTheta - (estimateK ? 1 : 0),
+  };
+}
+
+/**
+ * Starting θ from the GLM: one Newton step of each group's effect from zero, b_j = Σ s z / Σ w z²,
+ * whose spread beyond its sampling variance 1/Σ w z² estimates θ² (a method-of-moments start,
+ * common practice, no source); kept within [0.2, 5] so that Newton's method starts away from the
+ * flat point θ = 0.
+ */
+function momentTheta(ws: CountWorkspace, beta: Float64Array, k: number): number {
+  const { eta, score, weight, response, glm } = ws;
+  const term = ws.design.random[0];
+  const m = term.levels.length;
+  glm.linearPredictor(beta, eta);
+  response.kernel(eta, k, 0, ws.n, null, score, weight, null);
+  const { levelScore, levelWeight } = ws;
+  levelScore.fill(0);
+  levelWeight.fill(0);
+  for (let i = 0; i < ws.n; i++) {
+    const z = term.values[i];
+    levelScore[term.index[i]] += score[i] * z;
+    levelWeight[term.index[i]] += weight[i] * z * z;
+  }
+  let sumB2 = 0;
+  let sumVar = 0;
+  let groups = 0;
+  for (let j = 0; j < m; j++) {
+    const w = levelWeight[j];
+    if (!(w > 0)) continue;
+    const b = levelScore[j] / w;
+    sumB2 += b * b;
+    sumVar += 1 / w;
+    groups++;
+  }
+  const t2 = groups > 0 ? (sumB2 - sumVar) / groups : 0;
+  const t = Math.sqrt(Math.max(t2, 0));
+  return Number.isFinite(t) ? Math.min(5, Math.max(0.2, t)) : 0.2;
+}
+
+/** Any other grouping structure, by the Laplace approximation: the two stages described at the top. */
+function fitGeneral(
+  ws: CountWorkspace, base: CountBase, options: CountFitOptions, fitGlm: GlmOutcome,
+  kStart: number, estimateK: boolean, glmEvaluations: number, integration: Integration, nodes: number,
+): CountEstimate {
+  const { design, offset, response } = ws;
+  const { n, p } = design;
+  const nb = options.family === 'negative-binomial';
+  let k = kStart;
   const laplace = new LaplaceGeneral(design, offset, response);
   const layout = laplace.layout;
   const d = layout.thetaLength;
-  const oneIntercept = design.random.length === 1 && design.random[0].terms.length === 1;
-  const quad = oneIntercept ? new OneInterceptQuadrature(design.X, p, offset, response, design.random[0]) : null;
   let evaluations = glmEvaluations;
 
   // stage 1: θ with (β, u) by joint penalised IRLS
-  const restart = (): void => {
-    if (quad) { quad.beta.set(fitGlm.beta); quad.reset(); } else laplace.reset(fitGlm.beta);
-  };
+  const restart = (): void => laplace.reset(fitGlm.beta);
   restart();
   const stage1 = (theta: Float64Array): number => {
     evaluations++;
-    const v = quad ? quad.jointLaplace(theta[0], k) : laplace.solve(theta, true, k);
+    const v = laplace.solve(theta, true, k);
     if (!Number.isFinite(v)) restart();
     return v;
   };
   const thetaFixed = options.theta ? Float64Array.from(options.theta) : null;
-  let theta = thetaFixed ? Float64Array.from(thetaFixed) : layout.initialTheta();
+  let theta = thetaFixed ? Float64Array.from(thetaFixed) : options.start && options.start.length === d ? Float64Array.from(options.start) : layout.initialTheta();
   if (!thetaFixed) {
     if (d === 1) {
       const buf = new Float64Array(1);
@@ -183,9 +403,8 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
     }
   }
   stage1(theta);
-  const beta1 = Float64Array.from(quad ? quad.beta : laplace.beta);
-  const sdScratch = new Float64Array(quad ? quad.m : 0);
-  const cov1 = quad ? quad.fixedCovariance(theta[0], beta1, k, sdScratch) : laplace.fixedCovariance(theta, k);
+  const beta1 = Float64Array.from(laplace.beta);
+  const cov1 = laplace.fixedCovariance(theta, k);
   const scale = new Float64Array(p);
   for (let a = 0; a < p; a++) {
     const se = Math.sqrt(cov1[a * p + a]);
@@ -205,10 +424,8 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
   const objective = (phi: Float64Array): number => {
     evaluations++;
     const kk = unpack(phi);
-    if (quad) return quad.deviance(thetaWork[0], betaWork, kk, nodes);
     for (let a = 0; a < p; a++) laplace.beta[a] = betaWork[a];
-    const v = laplace.solve(thetaWork, false, kk);
-    return v;
+    return laplace.solve(thetaWork, false, kk);
   };
   const start = new Float64Array(dim);
   const lower = new Float64Array(dim);
@@ -248,25 +465,13 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
   }
 
   // modes, covariance and fitted values at the estimate (the modes of the last evaluation)
-  let cov: Float64Array;
-  let eta: Float64Array;
-  let modes: Float64Array;
-  let modeSds: Float64Array;
-  if (quad) {
-    modeSds = new Float64Array(quad.m);
-    modes = Float64Array.from(quad.modes, (u) => theta[0] * u);
-    cov = quad.fixedCovariance(theta[0], beta, k, modeSds);
-    eta = quad.predictor(theta[0], beta);
-    layout.setTheta(theta);
-  } else {
-    laplace.reset(beta);
-    laplace.solve(theta, false, k);
-    for (let a = 0; a < p; a++) laplace.beta[a] = beta[a];
-    cov = laplace.fixedCovariance(theta, k);
-    eta = Float64Array.from(laplace.eta);
-    modes = Float64Array.from(laplace.b);
-    modeSds = conditionalSds(laplace, layout);
-  }
+  laplace.reset(beta);
+  laplace.solve(theta, false, k);
+  for (let a = 0; a < p; a++) laplace.beta[a] = beta[a];
+  const cov = laplace.fixedCovariance(theta, k);
+  const eta = Float64Array.from(laplace.eta);
+  const modes = Float64Array.from(laplace.b);
+  const modeSds = conditionalSds(laplace, layout);
   const mu = new Float64Array(n);
   response.kernel(eta, k, 0, n, mu, null, null, null);
   let singular = false;

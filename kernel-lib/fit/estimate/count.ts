@@ -19,7 +19,7 @@ export function countEstimateStep(family: CountFamily): EstimateStep {
   return (design: DesignMatrices, options): Estimate => {
     const fitOptions = {
       family, trials: design.trials, offset: design.offset, integration: options.integration, nodes: options.nodes,
-      aliasPriority: options.priority,
+      priority: options.priority, start: options.start,
     };
     const est = estimateCountModel(design, fitOptions);
     const warnings: string[] = [];
@@ -55,12 +55,23 @@ export function countEstimateStep(family: CountFamily): EstimateStep {
 
 /** Σ = T Tᵀ per random term on the link scale (no residual variance in these families). */
 function linkScaleCovariances(design: DesignMatrices, est: ReturnType<typeof estimateCountModel>): TermCovariance[] {
+  if (design.random.length === 0) return [];
+  if (oneIntercept(design)) {
+    // the SD is theta[0]; the layout is not needed
+    const sd = est.theta[0];
+    return [{ term: design.random[0], cov: Float64Array.of(sd * sd), boundary: est.singular }];
+  }
   if (!est.layout) return [];
   est.layout.setTheta(est.theta);
   return termCovariances(est.layout, design, 1);
 }
 
 function modeRows(design: DesignMatrices, est: ReturnType<typeof estimateCountModel>): ConditionalModeRow[] {
+  if (design.random.length === 0) return [];
+  if (oneIntercept(design)) {
+    const term = design.random[0];
+    return term.levels.map((level, l) => ({ factor: term.factor, level, term: term.terms[0], mode: est.modes[l], sd: est.modeSds[l] }));
+  }
   const layout = est.layout;
   if (!layout) return [];
   const rows: ConditionalModeRow[] = [];
@@ -74,4 +85,8 @@ function modeRows(design: DesignMatrices, est: ReturnType<typeof estimateCountMo
     }
   }
   return rows;
+}
+
+function oneIntercept(design: DesignMatrices): boolean {
+  return design.random.length === 1 && design.random[0].terms.length === 1;
 }

@@ -144,6 +144,30 @@ export class GlmResponse {
     return sum;
   }
 
+  /**
+   * d w / dη of the observed weight w = −∂²ℓ/∂η² at η_i, for analytic gradients of the Laplace and
+   * quadrature deviances (the weight enters through the log-determinant). Rows as in `kernel`.
+   */
+  weightSlope(eta: Float64Array, k: number, from: number, to: number, out: Float64Array, rows: Int32Array | null = null): void {
+    const y = this.y;
+    const m = this.trials;
+    for (let r = from; r < to; r++) {
+      const i = rows ? rows[r] : r;
+      const e = eta[i] > ETA_MAX ? ETA_MAX : eta[i];
+      if (this.code === POISSON) {
+        out[i] = Math.exp(e);
+      } else if (this.code === BINOMIAL) {
+        const p = e >= 0 ? 1 / (1 + Math.exp(-e)) : Math.exp(e) / (1 + Math.exp(e));
+        out[i] = m[i] * p * (1 - p) * (1 - 2 * p);
+      } else {
+        // w = kμ(y + k)/(k + μ)², so dw/dη = kμ(y + k)(k − μ)/(k + μ)³
+        const mi = Math.exp(e);
+        const km = k + mi;
+        out[i] = (k * mi * (y[i] + k) * (k - mi)) / (km * km * km);
+      }
+    }
+  }
+
   /** Variance function V(μ) (per trial count for binomial: m π (1 − π)). */
   variance(mu: number, i: number, k: number): number {
     if (this.code === POISSON) return mu;

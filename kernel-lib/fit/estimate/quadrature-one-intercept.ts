@@ -42,6 +42,18 @@ export class OneInterceptQuadrature {
   private g = 0;
   private grad = 0;
   private hess = 0;
+  // gradient workspaces: d w/dη per row, scores at a node, per-group sums and derivatives (length p or 1 + p)
+  private readonly slope: Float64Array;
+  private readonly nodeScore: Float64Array;
+  private readonly nodeSx: Float64Array;
+  private nodeSz = 0;
+  private readonly sx: Float64Array;
+  private readonly swzx: Float64Array;
+  private readonly sw3x: Float64Array;
+  private readonly dU: Float64Array;
+  private readonly dH: Float64Array;
+  private readonly gPsi: Float64Array;
+  private readonly acc: Float64Array;
 
   constructor(readonly X: Float64Array, p: number, readonly offset: Float64Array, readonly response: GlmResponse, term: RandomTerm) {
     this.n = response.n;
@@ -73,6 +85,16 @@ export class OneInterceptQuadrature {
     this.betaPrev = new Float64Array(p);
     this.uPrev = new Float64Array(m);
     this.beta = new Float64Array(p);
+    this.slope = new Float64Array(n);
+    this.nodeScore = new Float64Array(n);
+    this.nodeSx = new Float64Array(p);
+    this.sx = new Float64Array(p);
+    this.swzx = new Float64Array(p);
+    this.sw3x = new Float64Array(p);
+    this.dU = new Float64Array(p + 1);
+    this.dH = new Float64Array(p + 1);
+    this.gPsi = new Float64Array(p + 1);
+    this.acc = new Float64Array(p + 1);
   }
 
   /** η = offset + Xβ + θ z u_group for every observation. */
@@ -220,13 +242,25 @@ export class OneInterceptQuadrature {
     this.hess = 1 + theta * theta * szz;
   }
 
-  /** g(u) only (one pass, no derivatives). */
-  private valueAt(j: number, theta: number, u: number, k: number): number {
+  /** g(u); with `sums`, also Σ s z and Σ s x over the group's rows (nodeSz, nodeSx). */
+  private valueAt(j: number, theta: number, u: number, k: number, sums: boolean): number {
     const from = this.groupStart[j];
     const to = this.groupStart[j + 1];
     const rows = this.groupRows;
     this.groupPredictor(from, to, theta, u);
-    return this.response.kernel(this.eta, k, from, to, null, null, null, null, rows) - 0.5 * u * u;
+    if (!sums) return this.response.kernel(this.eta, k, from, to, null, null, null, null, rows) - 0.5 * u * u;
+    const ll = this.response.kernel(this.eta, k, from, to, null, this.nodeScore, null, null, rows);
+    const { p, X, z, nodeScore, nodeSx } = this;
+    let sz = 0;
+    nodeSx.fill(0);
+    for (let r = from; r < to; r++) {
+      const i = rows[r];
+      const si = nodeScore[i];
+      sz += si * z[i];
+      for (let b = 0, row = i * p; b < p; b++) nodeSx[b] += si * X[row + b];
+    }
+    this.nodeSz = sz;
+    return ll - 0.5 * u * u;
   }
 
   /** Forget the warm starts (e.g. a new response). */
@@ -237,9 +271,11 @@ export class OneInterceptQuadrature {
   /**
    * −2 log L at (θ, β, k) with `nodes` quadrature points per group (1 = Laplace). Each group's
    * mode comes from Newton's method with step halving (the log integrand is concave in u for
-   * these families, so this converges from any start).
+   * these families, so this converges from any start). With `grad` (length 1 + p), also writes the
+   * exact gradient of this approximation in (θ, β): the mode and the curvature move with the
+   * parameters (implicit differentiation of the mode equation), and the adaptive nodes with them.
    */
-  deviance(theta: number, beta: ArrayLike<number>, k: number, nodes: number): number {
+  deviance(theta: number, beta: ArrayLike<number>, k: number, nodes: number, grad: Float64Array | null = null): number {
     const { n, p, m, X } = this;
     for (let i = 0, r = 0; i < n; i++, r += p) {
       let s = this.offset[i];
@@ -247,6 +283,8 @@ export class OneInterceptQuadrature {
       this.fixedPart[i] = s;
     }
     const rule = nodes > 1 ? gaussHermite(nodes) : null;
+    if (grad) grad.fill(0);
+    const { dU, dH, gPsi, acc } = this;
     let total = 0;
     for (let j = 0; j < m; j++) {
       let u = this.modes[j];
@@ -267,22 +305,77 @@ export class OneInterceptQuadrature {
       }
       if (!Number.isFinite(this.g)) return Infinity;
       this.modes[j] = u;
-      this.curvature[j] = this.hess;
+      const hess = this.hess;
+      this.curvature[j] = hess;
+      if (grad) this.modeDerivatives(j, theta, u, k, hess);
       if (!rule) {
-        total += this.g - 0.5 * Math.log(this.hess);
+        total += this.g - 0.5 * Math.log(hess);
+        if (grad) for (let c = 0; c <= p; c++) grad[c] -= 2 * (gPsi[c] - (0.5 * dH[c]) / hess);
         continue;
       }
       // u = û + √2 σ̂ x: ∫ e^{g} du = √2 σ̂ Σ_k w_k e^{g(û + √2 σ̂ x_k) + x_k²}
-      const scale = Math.SQRT2 / Math.sqrt(this.hess);
+      const scale = Math.SQRT2 / Math.sqrt(hess);
       const gMode = this.g;
       let sum = 0;
+      if (grad) acc.fill(0);
       for (let q = 0; q < rule.nodes.length; q++) {
         const x = rule.nodes[q];
-        const v = this.valueAt(j, theta, u + scale * x, k);
-        sum += rule.weights[q] * Math.exp(v - gMode + x * x);
+        const uq = u + scale * x;
+        const v = this.valueAt(j, theta, uq, k, grad !== null);
+        const e = rule.weights[q] * Math.exp(v - gMode + x * x);
+        sum += e;
+        if (grad) {
+          // d g(u_q)/dψ = ∂g/∂ψ + g'(u_q) (dû/dψ + x dσ/dψ), σ = √2/√h, dσ/dψ = −σ/(2h) dh/dψ
+          const gu = theta * this.nodeSz - uq;
+          acc[0] += e * (uq * this.nodeSz + gu * (dU[0] - (0.5 * scale * x * dH[0]) / hess));
+          for (let b = 0; b < p; b++) acc[1 + b] += e * (this.nodeSx[b] + gu * (dU[1 + b] - (0.5 * scale * x * dH[1 + b]) / hess));
+        }
       }
       total += gMode + Math.log(sum) + Math.log(scale) - 0.5 * LOG_2PI;
+      if (grad) for (let c = 0; c <= p; c++) grad[c] -= 2 * (acc[c] / sum - (0.5 * dH[c]) / hess);
     }
     return -2 * (total + this.response.constant(k));
+  }
+
+  /**
+   * At group j's mode û (scores and weights of its rows in place): ∂g/∂ψ at û (gPsi), dû/dψ (dU)
+   * and dh/dψ (dH) for ψ = (θ, β), from g_u(û; ψ) = 0: dû/dψ = g_uψ / h.
+   */
+  private modeDerivatives(j: number, theta: number, u: number, k: number, hess: number): void {
+    const { p, X, z, score, weight, slope, eta, dU, dH, gPsi, sx, swzx, sw3x } = this;
+    const from = this.groupStart[j];
+    const to = this.groupStart[j + 1];
+    const rows = this.groupRows;
+    this.response.weightSlope(eta, k, from, to, slope, rows);
+    let szs = 0;
+    let szzw = 0;
+    let szzzs = 0;
+    sx.fill(0);
+    swzx.fill(0);
+    sw3x.fill(0);
+    for (let r = from; r < to; r++) {
+      const i = rows[r];
+      const zi = z[i];
+      const wz = weight[i] * zi;
+      const szz = slope[i] * zi * zi;
+      szs += score[i] * zi;
+      szzw += wz * zi;
+      szzzs += szz * zi;
+      for (let b = 0, row = i * p; b < p; b++) {
+        const xb = X[row + b];
+        sx[b] += score[i] * xb;
+        swzx[b] += wz * xb;
+        sw3x[b] += szz * xb;
+      }
+    }
+    const t2 = theta * theta;
+    dU[0] = (szs - theta * u * szzw) / hess;
+    dH[0] = 2 * theta * szzw + t2 * szzzs * (u + theta * dU[0]);
+    gPsi[0] = u * szs;
+    for (let b = 0; b < p; b++) {
+      dU[1 + b] = (-theta * swzx[b]) / hess;
+      dH[1 + b] = t2 * (sw3x[b] + theta * dU[1 + b] * szzzs);
+      gPsi[1 + b] = sx[b];
+    }
   }
 }

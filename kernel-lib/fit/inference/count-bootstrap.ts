@@ -25,7 +25,7 @@ const NO_MAXIMUM_SE = 100;
 
 /** What a count resample needs beyond the design and estimates (plain data, structured-cloneable). */
 export interface CountResampling {
-  options: Omit<CountFitOptions, 'aliasPriority' | 'theta'>;
+  options: Omit<CountFitOptions, 'priority' | 'theta'>;
   /** Fitted NB aggregation k (NaN for the other families). */
   aggregation: number;
 }

@@ -16,14 +16,14 @@ import type { BootstrapSettings, IntervalOutcome, SmallSampleMethod } from './in
 /** The interval context of a count fit made by estimateCountModel on `full` with `options`. */
 export function countContext(full: DesignMatrices, options: CountFitOptions, estimate: CountEstimate): CountContext {
   const design = restrictColumns(full, estimate.estimable);
-  const { aliasPriority: _ignored, ...rest } = options;
+  const { priority: _ignored, ...rest } = options;
   return { design, options: { ...rest, integration: estimate.integration === 'quadrature' ? 'quadrature' : 'laplace', nodes: estimate.nodes || undefined }, estimate };
 }
 
 /** The plain-data model the bootstrap runners draw from. */
 export function countBootstrapModel(ctx: CountContext, seed: number | string): BootstrapModel {
   const { estimate } = ctx;
-  const { theta: _t, aliasPriority: _a, ...options } = ctx.options;
+  const { theta: _t, priority: _a, ...options } = ctx.options;
   return {
     design: ctx.design, reml: false, beta: estimate.beta, theta: estimate.theta, sigma: NaN, seed,
     count: { options, aggregation: estimate.aggregation },

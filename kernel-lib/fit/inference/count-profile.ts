@@ -30,7 +30,7 @@ export interface CountContext {
 
 /** The fit's own options with a different offset and/or held θ. */
 function refit(ctx: CountContext, design: DesignMatrices, offset: Float64Array | undefined, theta?: ArrayLike<number>): CountEstimate {
-  return estimateCountModel(design, { ...ctx.options, offset, theta, aliasPriority: undefined });
+  return estimateCountModel(design, { ...ctx.options, offset, theta, priority: undefined });
 }
 
 /** −2ℓ of a refit, NaN when it could not be evaluated. */

@@ -9,54 +9,62 @@
 const { join } = require('node:path');
 const { execFileSync } = require('node:child_process');
 const { readCsvFile } = require('../dist/data/csv');
-const { estimateCountModel } = require('../dist/fit/estimate/count-model');
+const { parseModel } = require('../dist/model/parse');
+const { buildDesign } = require('../dist/data/build-design');
+const { fitDesign } = require('../dist/fit/fit-design');
 
 const DIR = join(__dirname, '..', 'data', 'reference', 'counts');
 
-function design(name) {
-  const rows = readCsvFile(join(DIR, `${name}.csv`));
-  const n = rows.y.length;
-  const labels = [...new Set(rows.g.map(String))].sort();
-  const X = new Float64Array(2 * n);
-  rows.x.forEach((x, i) => { X[2 * i] = 1; X[2 * i + 1] = x; });
-  const d = {
-    n, p: 2, X, fixedNames: ['intercept', 'x'], y: Float64Array.from(rows.y),
-    random: [{ factor: 'g', levels: labels, index: Int32Array.from(rows.g.map((g) => labels.indexOf(String(g)))), terms: ['intercept'], values: new Float64Array(n).fill(1), correlated: true }],
-    levelCounts: { g: labels.length }, droppedRows: [], rowIds: Int32Array.from({ length: n }, (_, i) => i), warnings: [],
-  };
-  const options = {
-    offset: rows.effort ? Float64Array.from(rows.effort, Math.log) : undefined,
-    trials: rows.m ? Float64Array.from(rows.m) : undefined,
-  };
-  return { d, options };
+/** The case's table and model (random intercept of g; log effort as offset, m as trials). */
+function design(name, family) {
+  const columns = readCsvFile(join(DIR, `${name}.csv`));
+  if (columns.effort) columns.log_effort = columns.effort.map(Math.log);
+  const model = parseModel({
+    response: 'y', family, fixed: ['x'], groups: [{ factor: 'g', as: 'random' }],
+    ...(columns.effort ? { offset: 'log_effort' } : {}), ...(columns.m ? { trials: 'm' } : {}),
+  });
+  return buildDesign(columns, model);
 }
 
+/** Calls of fn per second of wall time and per second of this process's CPU time (user + system). */
 function fitsPerSecond(fn, seconds) {
   for (let i = 0; i < 20; i++) fn();
   let count = 0;
   const start = process.hrtime.bigint();
+  const cpu0 = process.cpuUsage();
   let elapsed = 0;
   while (elapsed < seconds) {
     for (let i = 0; i < 10; i++) fn();
     count += 10;
     elapsed = Number(process.hrtime.bigint() - start) / 1e9;
   }
-  return count / elapsed;
+  const cpu = process.cpuUsage(cpu0);
+  return { wall: count / elapsed, cpu: count / ((cpu.user + cpu.system) / 1e6) };
 }
 
 function statsmodelsGlm(name, family) {
   const out = execFileSync('/usr/bin/python3', [join(__dirname, 'statsmodels_glm_bench.py'), join(DIR, `${name}.csv`), family, '200'], { encoding: 'utf8' });
-  return JSON.parse(out).fitsPerSecond;
+  return JSON.parse(out);
 }
 
+/**
+ * Fits per second of fitDesign (estimate and summarise steps, Wald intervals, modes and fitted
+ * values) and of statsmodels GLM.fit() on the same data, by wall time and by CPU time: on a shared
+ * machine the CPU-time rate is the per-core figure, and the ratio compares like with like.
+ */
 function countCases(seconds = 2) {
   const rows = [];
   for (const [name, family] of [['poisson-groups', 'poisson'], ['binomial-groups', 'binomial']]) {
-    const { d, options } = design(name);
+    const d = design(name, family);
     const reference = statsmodelsGlm(name, family);
     for (const integration of ['laplace', 'quadrature']) {
-      const fps = fitsPerSecond(() => estimateCountModel(d, { family, ...options, integration, nodes: 9 }), seconds);
-      rows.push({ case: `${family} random intercept n=${d.n}, ${d.random[0].levels.length} groups, ${integration === 'laplace' ? 'Laplace' : '9-node quadrature'}`, fitsPerSecond: fps, referenceFitsPerSecond: reference, reference: 'statsmodels GLM (no random effect)', ratio: fps / reference });
+      const rate = fitsPerSecond(() => fitDesign(d, { family, integration, nodes: 9 }), seconds);
+      rows.push({
+        case: `${family} random intercept n=${d.n}, ${d.random[0].levels.length} groups, ${integration === 'laplace' ? 'Laplace' : '9-node quadrature'}`,
+        fitsPerSecond: rate.wall, fitsPerCpuSecond: rate.cpu,
+        referenceFitsPerSecond: reference.fitsPerSecond, referenceFitsPerCpuSecond: reference.fitsPerCpuSecond,
+        reference: 'statsmodels GLM (no random effect)', ratio: rate.wall / reference.fitsPerSecond, cpuRatio: rate.cpu / reference.fitsPerCpuSecond,
+      });
     }
   }
   return rows;
@@ -80,23 +88,36 @@ function countStudy(seconds = 3) {
   runner.runBatch(0, 0, 10);
   let r = 10;
   const start = process.hrtime.bigint();
+  const cpu0 = process.cpuUsage();
   let elapsed = 0;
   while (elapsed < seconds) {
     runner.runBatch(0, r, r + 10);
     r += 10;
     elapsed = Number(process.hrtime.bigint() - start) / 1e9;
   }
-  return { case: 'count study: 30 sites x 6 visits, Poisson mixed (Laplace) + counts as normal', replicatesPerSecondInThread: (r - 10) / elapsed };
+  const cpu = process.cpuUsage(cpu0);
+  return {
+    case: 'count study: 30 sites x 6 visits, Poisson mixed (Laplace) + counts as normal',
+    replicatesPerSecondInThread: (r - 10) / elapsed, replicatesPerCpuSecond: (r - 10) / ((cpu.user + cpu.system) / 1e6),
+  };
 }
 
-module.exports = { countCases, countStudy };
+/** Text lines of the count section. */
+function countLines(rows, study) {
+  const lines = rows.map((r) =>
+    `${r.case}: ${r.fitsPerSecond.toFixed(0)} fits/s (${r.fitsPerCpuSecond.toFixed(0)} per CPU second); ${r.reference} ${r.referenceFitsPerSecond.toFixed(0)} ` +
+    `(${r.referenceFitsPerCpuSecond.toFixed(0)} per CPU second); ratio ${r.ratio.toFixed(2)} (CPU ${r.cpuRatio.toFixed(2)})`);
+  lines.push(`${study.case}: ${study.replicatesPerSecondInThread.toFixed(1)} replicates/s in one thread (${study.replicatesPerCpuSecond.toFixed(1)} per CPU second)`);
+  return lines;
+}
+
+module.exports = { countCases, countStudy, countLines };
 
 if (require.main === module) {
   const rows = countCases();
   const study = countStudy();
   if (process.argv.includes('--json')) console.log(JSON.stringify([...rows, study], null, 1));
   else {
-    for (const r of rows) console.log(`${r.case}: ${r.fitsPerSecond.toFixed(0)} fits/s; ${r.reference} ${r.referenceFitsPerSecond.toFixed(0)} fits/s; ratio ${r.ratio.toFixed(2)}`);
-    console.log(`${study.case}: ${study.replicatesPerSecondInThread.toFixed(1)} replicates/s in one thread`);
+    for (const line of countLines(rows, study)) console.log(line);
   }
 }

@@ -9,7 +9,7 @@ const { tmpdir } = require('node:os');
 const { join } = require('node:path');
 const { execFileSync } = require('node:child_process');
 const { engineCases, toCsv } = require('./engine-cases');
-const { countCases, countStudy } = require('./count-speed');
+const { countCases, countStudy, countLines } = require('./count-speed');
 const { readCsvFile } = require('../dist/data/csv');
 const { parseModel } = require('../dist/model/parse');
 const { buildDesign } = require('../dist/data/build-design');
@@ -201,8 +201,7 @@ async function main() {
   }
   console.log('');
   console.log('Count and detection fits (same data for Quadrat mixed models and statsmodels GLM without random effect)');
-  for (const r of counts.slice(0, -1)) console.log(`  ${r.case}: ${r.fitsPerSecond.toFixed(0)} fits/s; ${r.reference} ${r.referenceFitsPerSecond.toFixed(0)} fits/s; ratio ${r.ratio.toFixed(2)}`);
-  console.log(`  ${counts[counts.length - 1].case}: ${counts[counts.length - 1].replicatesPerSecondInThread.toFixed(1)} replicates/s in one thread`);
+  for (const line of countLines(counts.slice(0, -1), counts[counts.length - 1])) console.log(`  ${line}`);
   if (study) {
     console.log('');
     console.log(`Study benchmark (${study.case}):`);

@@ -43,7 +43,6 @@ const EXEMPT = {
   'fit/estimate/glm-irls': 'exercised only indirectly; own file not written yet',
   'fit/estimate/laplace-general': 'exercised through tests/fit/estimate/count-model.test.ts (among others); own file not written yet',
   'fit/estimate/normal': 'exercised only indirectly; own file not written yet',
-  'fit/estimate/quadrature-one-intercept': 'exercised through tests/fit/estimate/count-model.test.ts (among others); own file not written yet',
   'fit/inference/bootstrap-fit': 'exercised through tests/fit/inference/bootstrap.test.ts (among others); own file not written yet',
   'fit/inference/bootstrap-pool': 'exercised only indirectly; own file not written yet',
   'fit/inference/bootstrap-worker': 'worker-thread entry loaded by path; runs in the study/bootstrap tests',

@@ -76,7 +76,7 @@ export interface CountEstimate {
   nodes: number;
   estimable: number[];
   aliased: number[];
-  /** XᵀX of the full design (p × p), for explaining aliased columns. */
+  /** XᵀX of the full design (p × p), for explaining aliased columns (kept with the design: read only). */
   xtx: Float64Array;
   /** Estimates of the estimable columns, in `estimable` order. */
   beta: Float64Array;
@@ -188,7 +188,7 @@ export function estimateCountModel(full: DesignMatrices, options: CountFitOption
 function estimateWith(ws: CountWorkspace, full: DesignMatrices, options: CountFitOptions): CountEstimate {
   const family = options.family;
   const n = full.n;
-  const { alias, design, offset, response, glm, xtx } = ws;
+  const { alias, design, response, glm, xtx } = ws;
   const p = design.p;
   response.setResponse(full.y);
   const nb = family === 'negative-binomial';
@@ -212,7 +212,7 @@ function estimateWith(ws: CountWorkspace, full: DesignMatrices, options: CountFi
   }
   const link = family === 'binomial' ? 'logit' : 'log';
   const base = {
-    family, link: link as 'log' | 'logit', estimable: alias.estimable, aliased: alias.aliased, xtx: Float64Array.from(xtx),
+    family, link: link as 'log' | 'logit', estimable: alias.estimable, aliased: alias.aliased, xtx,
   };
   if (design.random.length === 0) {
     const eta = new Float64Array(n);
@@ -222,7 +222,7 @@ function estimateWith(ws: CountWorkspace, full: DesignMatrices, options: CountFi
     const kParams = estimateK ? 1 : 0;
     const reason = fitGlm.reason;
     return {
-      ...base, integration: 'exact', nodes: 0, beta: fitGlm.beta, cov: fitGlm.cov, theta: new Float64Array(0),
+      ...base, integration: 'exact', nodes: 0, beta: fitGlm.beta, cov: glm.covariance(fitGlm.beta, k), theta: new Float64Array(0),
       aggregation: nb ? k : NaN, logLik: fitGlm.logLik, converged: fitGlm.converged, singular: false, reason,
       evaluations: glmEvaluations, eta, mu, modes: new Float64Array(0), modeSds: new Float64Array(0), layout: null, warnings: kWarning(estimateK, k),
       pearsonChi2: pearson(response, mu, k), residualDf: n - p - kParams,

@@ -9,8 +9,6 @@ import type { GlmResponse } from './glm-response';
 
 export interface GlmOutcome {
   beta: Float64Array;
-  /** Covariance of β: (XᵀWX)⁻¹ with Fisher weights at the estimate. */
-  cov: Float64Array;
   logLik: number;
   iterations: number;
   converged: boolean;
@@ -125,11 +123,10 @@ export class GlmIrls {
       if (change <= 1e-13 * (Math.abs(ll) + 1)) { converged = true; iterations++; break; }
     }
     if (!converged && !reason) reason = `no convergence in ${MAX_ITERATIONS} iterations (an estimate may be running to infinity: separation or all-zero groups)`;
-    const cov = this.covariance(beta, k);
-    return { beta: Float64Array.from(beta), cov, logLik: ll + response.constant(k), iterations, converged, reason };
+    return { beta: Float64Array.from(beta), logLik: ll + response.constant(k), iterations, converged, reason };
   }
 
-  /** (XᵀWX)⁻¹ with Fisher weights at β (NaN when not positive definite). */
+  /** Covariance of β: (XᵀWX)⁻¹ with Fisher weights at β (NaN when not positive definite). */
   covariance(beta: ArrayLike<number>, k: number): Float64Array {
     const { n, p, eta, fisher } = this;
     this.linearPredictor(beta, eta);

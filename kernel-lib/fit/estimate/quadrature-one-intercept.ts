@@ -8,7 +8,7 @@
  */
 import type { RandomTerm } from '../../data/design-matrices';
 import { gaussHermite } from '../../numeric/gauss-hermite';
-import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace, inverseFromCholesky } from '../../numeric/dense';
+import { choleskyInPlace, inverseFromCholesky } from '../../numeric/dense';
 import type { GlmResponse } from './glm-response';
 
 const LOG_2PI = Math.log(2 * Math.PI);
@@ -31,13 +31,9 @@ export class OneInterceptQuadrature {
   private readonly index: Int32Array;
   private readonly fisher: Float64Array;
   private readonly a: Float64Array;
-  private readonly rhs: Float64Array;
   private readonly c: Float64Array;
   private readonly d: Float64Array;
-  private readonly r: Float64Array;
-  private readonly betaPrev: Float64Array;
-  private readonly uPrev: Float64Array;
-  /** Fixed effects of the last joint solve. */
+  /** Fixed effects of the last covariance or predictor call. */
   readonly beta: Float64Array;
   private g = 0;
   private grad = 0;
@@ -78,12 +74,8 @@ export class OneInterceptQuadrature {
     this.fisher = new Float64Array(n);
     this.index = term.index;
     this.a = new Float64Array(p * p);
-    this.rhs = new Float64Array(p);
     this.c = new Float64Array(m * p);
     this.d = new Float64Array(m);
-    this.r = new Float64Array(m);
-    this.betaPrev = new Float64Array(p);
-    this.uPrev = new Float64Array(m);
     this.beta = new Float64Array(p);
     this.slope = new Float64Array(n);
     this.nodeScore = new Float64Array(n);
@@ -108,28 +100,22 @@ export class OneInterceptQuadrature {
   }
 
   /**
-   * The normal equations of the joint penalised weighted least-squares step with u eliminated
-   * group by group: A = XᵀWX − Σ_j c_j c_jᵀ/d_j with d_j = 1 + θ² Σ w z², c_j = θ Σ w z x (and the
-   * right-hand side likewise). Weights from `w`; working response from the current η and scores.
+   * The joint penalised weighted least-squares matrix with u eliminated group by group (weights
+   * `w`): A = XᵀWX − Σ_j c_j c_jᵀ/d_j with d_j = 1 + θ² Σ w z², c_j = θ Σ w z x.
    */
-  private schur(theta: number, w: Float64Array, withRhs: boolean): void {
-    const { n, p, m, X, a, rhs, c, d, r } = this;
+  private schur(theta: number, w: Float64Array): void {
+    const { n, p, m, X, a, c, d } = this;
     a.fill(0);
-    rhs.fill(0);
     c.fill(0);
     d.fill(1);
-    r.fill(0);
     for (let i = 0, row = 0; i < n; i++, row += p) {
       const wi = w[i] > 1e-300 ? w[i] : 1e-300;
-      const zt = withRhs ? this.eta[i] - this.offset[i] + this.score[i] / wi : 0;
       const j = this.index[i];
       const wz = wi * this.z[i];
       d[j] += theta * theta * wz * this.z[i];
-      r[j] += theta * wz * zt;
       for (let b = 0; b < p; b++) {
         const xb = X[row + b];
         c[j * p + b] += theta * wz * xb;
-        rhs[b] += wi * xb * zt;
         for (let e = 0; e <= b; e++) a[b * p + e] += wi * xb * X[row + e];
       }
     }
@@ -137,56 +123,9 @@ export class OneInterceptQuadrature {
       const inv = 1 / d[j];
       for (let b = 0; b < p; b++) {
         const cb = c[j * p + b] * inv;
-        rhs[b] -= cb * r[j];
         for (let e = 0; e <= b; e++) a[b * p + e] -= cb * c[j * p + e];
       }
     }
-  }
-
-  private penalisedDeviance(theta: number, k: number): number {
-    this.fullPredictor(theta);
-    const ll = this.response.kernel(this.eta, k, 0, this.n, null, this.score, this.weight, null);
-    let uu = 0;
-    for (let j = 0; j < this.m; j++) uu += this.modes[j] * this.modes[j];
-    return -2 * ll + uu;
-  }
-
-  /**
-   * Joint penalised IRLS over (β, u) at θ from the current state (set `beta` and call reset()
-   * to start afresh); returns the Laplace deviance at the result (stage 1 of the count fit).
-   */
-  jointLaplace(theta: number, k: number): number {
-    const { p, m } = this;
-    let pl = this.penalisedDeviance(theta, k);
-    for (let it = 0; it < 60; it++) {
-      this.schur(theta, this.weight, true);
-      if (choleskyInPlace(this.a, p) >= 0) return Infinity;
-      this.betaPrev.set(this.beta);
-      this.uPrev.set(this.modes);
-      this.beta.set(this.rhs);
-      forwardSolveInPlace(this.a, p, this.beta);
-      backSolveTransposeInPlace(this.a, p, this.beta);
-      for (let j = 0; j < m; j++) {
-        let s = this.r[j];
-        for (let b = 0; b < p; b++) s -= this.c[j * p + b] * this.beta[b];
-        this.modes[j] = s / this.d[j];
-      }
-      let next = this.penalisedDeviance(theta, k);
-      for (let h = 0; !(next <= pl + 1e-10 * Math.abs(pl)) && h < 30; h++) {
-        for (let b = 0; b < p; b++) this.beta[b] = 0.5 * (this.beta[b] + this.betaPrev[b]);
-        for (let j = 0; j < m; j++) this.modes[j] = 0.5 * (this.modes[j] + this.uPrev[j]);
-        next = this.penalisedDeviance(theta, k);
-      }
-      const done = Math.abs(pl - next) <= 1e-11 * (Math.abs(next) + 1);
-      pl = next;
-      if (done) break;
-    }
-    if (!Number.isFinite(pl)) return Infinity;
-    // log|L|² = Σ log d_j with the weights at the final modes
-    this.schur(theta, this.weight, false);
-    let logDet = 0;
-    for (let j = 0; j < m; j++) logDet += Math.log(this.d[j]);
-    return pl + logDet - 2 * this.response.constant(k);
   }
 
   /**
@@ -199,7 +138,7 @@ export class OneInterceptQuadrature {
     for (let b = 0; b < p; b++) this.beta[b] = beta[b];
     this.fullPredictor(theta);
     this.response.kernel(this.eta, k, 0, this.n, null, this.score, this.weight, this.fisher);
-    this.schur(theta, this.fisher, false);
+    this.schur(theta, this.fisher);
     for (let j = 0; j < m; j++) modeSds[j] = Math.abs(theta) / Math.sqrt(this.d[j]);
     const out = new Float64Array(p * p);
     if (choleskyInPlace(this.a, p) >= 0) return out.fill(NaN);

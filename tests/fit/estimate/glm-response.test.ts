@@ -38,4 +38,19 @@ describe('GlmResponse', () => {
       expect(Math.abs(w[0] + (ll(eta0 + h) - 2 * ll(eta0) + ll(eta0 - h)) / (h * h))).toBeLessThan(1e-5);
     }
   });
+
+  it('weightSlope is the derivative of the observed weight in η (central differences)', () => {
+    // identity: d w/dη with w = −∂²ℓ/∂η², checked numerically (common practice, no source)
+    const cases: [CountFamily, number, number][] = [['poisson', 4, 0.7], ['binomial', 3, -0.4], ['binomial', 1, 1.3], ['negative-binomial', 9, 1.6], ['negative-binomial', 0, -0.5]];
+    for (const [family, y, eta0] of cases) {
+      const r = new GlmResponse(family, 1, Float64Array.of(5));
+      r.setResponse([y]);
+      const w = new Float64Array(1);
+      const weight = (e: number) => { r.kernel(Float64Array.of(e), 2.5, 0, 1, null, null, w, null); return w[0]; };
+      const slope = new Float64Array(1);
+      r.weightSlope(Float64Array.of(eta0), 2.5, 0, 1, slope);
+      const h = 1e-5;
+      expect(Math.abs(slope[0] - (weight(eta0 + h) - weight(eta0 - h)) / (2 * h))).toBeLessThan(1e-7);
+    }
+  });
 });

@@ -34,7 +34,6 @@ import { nelderMeadBounded } from '../../numeric/nelder-mead';
 import { newtonMinimise } from '../../numeric/newton';
 import { GlmResponse, type CountFamily } from './glm-response';
 import { GlmIrls, type GlmOutcome } from './glm-irls';
-import type { EstimateOptions } from './types';
 import { LaplaceGeneral } from './laplace-general';
 import { OneInterceptQuadrature } from './quadrature-one-intercept';
 import { conditionalVarianceFactor, ProfiledDeviance } from '../profiled-deviance';
@@ -56,17 +55,17 @@ export interface CountFitOptions {
   /** Added to the linear predictor (e.g. log effort). Default 0. */
   offset?: Float64Array;
   /** Default 'laplace'. 'quadrature' needs exactly one random term with an intercept only. */
-  integration?: EstimateOptions['integration'];
+  integration?: Integration;
   /** Quadrature nodes (default 9); 1 is the Laplace approximation. */
-  nodes?: EstimateOptions['nodes'];
+  nodes?: number;
   /** Hold the NB aggregation k at this value instead of estimating it. */
   aggregation?: number;
   /** Hold θ at this value (engine order) and estimate β (and k) only. */
   theta?: ArrayLike<number>;
   /** Column visiting order for aliasing detection (EstimateOptions.priority). */
-  priority?: EstimateOptions['priority'];
+  priority?: number[];
   /** Starting θ (engine order), as EstimateOptions.start. */
-  start?: EstimateOptions['start'];
+  start?: ArrayLike<number>;
 }
 
 export interface CountEstimate {

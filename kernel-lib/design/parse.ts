@@ -9,7 +9,8 @@ import { describeValue, listNames } from '../model/errors';
 import { INTERCEPT } from '../model/terms';
 import { createStream } from '../random/stream';
 import { expectArray, expectInteger, expectName, expectNonNegative, expectNumber, expectObject, fail, keyPath, rejectUnknownKeys } from './checks';
-import { columnCatalog } from './columns';
+import { columnCatalog, type ColumnCatalog } from './columns';
+import { addTrialsColumn, checkVariantResponseColumns, parseDesignOffset, parseDesignTrials } from './response-columns';
 import { parseCovariates } from './covariates';
 import { parseFactors } from './factors';
 import { RESPONSE_FAMILIES, responseFamily } from '../family/index';
@@ -20,7 +21,7 @@ import { parseTruth } from './truth';
 import type { GridAxis, GridValue, ResolvedFactor, SurveyDesign, SurveyDesignSpec } from './types';
 import { parseVariants } from './variants';
 
-const DESIGN_KEYS = ['seed', 'replicates', 'factors', 'perCell', 'missing', 'response', 'family', 'trials', 'covariates', 'unequal', 'truth', 'variants', 'grid', 'plan'];
+const DESIGN_KEYS = ['seed', 'replicates', 'factors', 'perCell', 'missing', 'response', 'family', 'trials', 'offset', 'covariates', 'unequal', 'truth', 'variants', 'grid', 'plan'];
 
 const DESIGN_DEFAULTS = { perCell: 1, missing: 0, response: 'y', family: 'gaussian' };
 
@@ -56,11 +57,7 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
     fail(`${path}.family: expected one of ${listNames(Object.keys(RESPONSE_FAMILIES))}, got ${describeValue(familyName)}`, `${path}.family`);
   }
 
-  let trials = 1;
-  if (obj.trials !== undefined) {
-    if (family.name !== 'binomial') fail(`${path}.trials: only used with "family": "binomial"`, `${path}.trials`);
-    trials = expectInteger(obj.trials, `${path}.trials`, 1);
-  }
+  const trialsSpec = parseDesignTrials(obj.trials, `${path}.trials`, family.name);
 
   const covariates = parseCovariates(obj.covariates, `${path}.covariates`, factors);
   covariates.forEach((c, i) => {
@@ -71,6 +68,8 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
   const unequal = parseUnequal(obj.unequal, `${path}.unequal`, factors, perCell, seed);
   const layout = buildLayout(factors, perCell, unequal);
   const catalog = columnCatalog(response, factors, covariates);
+  addTrialsColumn(catalog, trialsSpec, `${path}.trials`);
+  const offset = parseDesignOffset(obj.offset, `${path}.offset`, family.name, catalog, trialsSpec.trialsRange?.column);
   if (obj.truth === undefined) fail(`${path}.truth: expected an object with fixed and sd (required)`, `${path}.truth`);
   const truth = parseTruth(obj.truth, `${path}.truth`, catalog, factors, family, warnings);
   covariates.forEach((c, i) => {
@@ -82,7 +81,7 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
   });
   if (obj.variants === undefined) fail(`${path}.variants: expected an array of { name, model } (required)`, `${path}.variants`);
   const variants = parseVariants(obj.variants, `${path}.variants`, { catalog, factors, layout, truth }, warnings);
-  checkVariantFamilies(variants, family.name, trials, `${path}.variants`, warnings);
+  checkVariantFamilies(variants, { family: family.name, ...trialsSpec }, catalog, `${path}.variants`, warnings);
   // The copy kept for the grid has the defaults written out, so a grid can vary them too.
   const source = JSON.parse(JSON.stringify(obj)) as Record<string, unknown>;
   for (const [key, value] of Object.entries(DESIGN_DEFAULTS)) if (source[key] === undefined) source[key] = value;
@@ -93,7 +92,8 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
     replicates,
     response,
     family: family.name,
-    trials,
+    ...trialsSpec,
+    ...(offset === undefined ? {} : { offset }),
     factors,
     perCell,
     missing,
@@ -180,12 +180,13 @@ const LINKS: Record<string, string> = { gaussian: 'identity', poisson: 'log', 'n
  * link differs from the simulated family's, its coefficients are on another scale than the truth:
  * say so. A binomial variant must use the design's trials.
  */
-function checkVariantFamilies(variants: SurveyDesign['variants'], family: string, trials: number, path: string, warnings: string[]): void {
+function checkVariantFamilies(
+  variants: SurveyDesign['variants'], design: Pick<SurveyDesign, 'family' | 'trials' | 'trialsRange'>, catalog: ColumnCatalog, path: string, warnings: string[],
+): void {
+  const family = design.family;
   variants.forEach((v, i) => {
     const m = v.model;
-    if (m.family === 'binomial' && family === 'binomial' && m.trials !== trials) {
-      fail(`${path}[${i}].model.trials: the design draws ${trials} trial(s) per observation; give "trials": ${trials}`, `${path}[${i}].model.trials`);
-    }
+    checkVariantResponseColumns(m, design, catalog, `${path}[${i}].model`);
     if (LINKS[m.family] !== LINKS[family]) {
       warnings.push(
         `${path}[${i}] ("${v.name}") fits a ${m.family} model (${LINKS[m.family]} link) to ${family} data (${LINKS[family]} link): its coefficients are on another scale than the truth, ` +

@@ -95,8 +95,14 @@ export interface SimulationPlan {
   random: CompiledRandom[];
   family: ResponseFamily;
   familyParams: FamilyParams;
-  /** Trials per observation (binomial; 1 otherwise). */
+  /** Trials per observation (binomial; 1 otherwise); with a trials range, its maximum. */
   trials: number;
+  /** Trials range drawn per observation (both equal `trials` without a range), and its numeric slot (−1: none). */
+  trialsMin: number;
+  trialsMax: number;
+  trialsSlot: number;
+  /** Numeric slot of the offset covariate added to the linear predictor (−1: none). */
+  offsetSlot: number;
 }
 
 export function compilePlan(design: SurveyDesign): SimulationPlan {
@@ -140,6 +146,9 @@ export function compilePlan(design: SurveyDesign): SimulationPlan {
     compiled.effectCorrelation = conf?.correlation ?? 0;
     return compiled;
   });
+
+  // the drawn trials column comes after the covariates, so covariate slots do not depend on it
+  const trialsSlot = design.trialsRange ? numericCount++ : -1;
 
   let intercept = 0;
   const others = design.truth.terms.filter((t) => {
@@ -204,5 +213,9 @@ export function compilePlan(design: SurveyDesign): SimulationPlan {
     family: RESPONSE_FAMILIES[design.family as FamilyName]!,
     familyParams: design.truth.familyParams,
     trials: design.trials,
+    trialsMin: design.trialsRange?.min ?? design.trials,
+    trialsMax: design.trialsRange?.max ?? design.trials,
+    trialsSlot,
+    offsetSlot: design.offset === undefined ? -1 : numericSlot.get(design.offset)!,
   };
 }

@@ -6,7 +6,9 @@
  * uniform per row of the complete layout decides whether it is dropped; (2) random effects
  * factor by factor, level by level, b = L z; (3) covariates that vary by a factor (between-level
  * shifts first, then one value per level); (4) for the kept rows in layout order: each
- * observation-level covariate in declared order (a whole column at a time), then the responses.
+ * observation-level covariate in declared order (a whole column at a time), then, for a binomial
+ * design with a trials range, one uniform whole number per row (stream.int, min..max), then the
+ * responses. The design's offset covariate is added to the linear predictor (no draw).
  *
  * Two entry points: simulateColumns returns fresh arrays the caller owns; simulateInto fills
  * a reusable workspace and allocates nothing once each row count has been seen (its arrays are
@@ -346,8 +348,21 @@ function fillRows(ws: SimulationWorkspace, stream: Stream, n: number, out: Outpu
     }
   }
 
+  if (plan.offsetSlot >= 0) {
+    const off = numeric[plan.offsetSlot];
+    for (let i = 0; i < n; i++) eta[i] += off[i];
+  }
+
   const family = plan.family;
   const params = plan.familyParams;
+  if (plan.trialsSlot >= 0) {
+    const trials = numeric[plan.trialsSlot];
+    const min = plan.trialsMin;
+    const span = plan.trialsMax - min + 1;
+    for (let i = 0; i < n; i++) trials[i] = min + stream.int(span);
+    for (let i = 0; i < n; i++) y[i] = family.draw(family.linkInverse(eta[i]), stream, params, trials[i]);
+    return;
+  }
   const trials = plan.trials;
   for (let i = 0; i < n; i++) y[i] = family.draw(family.linkInverse(eta[i]), stream, params, trials);
 }
@@ -360,6 +375,7 @@ function assemble(plan: SimulationPlan, n: number, out: Outputs, effectValues: F
     levelIndex[name] = out.index[f];
   });
   for (const c of plan.covariates) columns[c.name] = c.kind === KIND_CATEGORICAL ? out.text[c.slot] : out.numeric[c.slot];
+  if (plan.trialsSlot >= 0) columns[plan.design.trialsRange!.column] = out.numeric[plan.trialsSlot];
   columns[plan.design.response] = out.y;
   const effects: Record<string, RealisedEffects> = {};
   plan.random.forEach((r, ri) => {

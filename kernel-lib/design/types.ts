@@ -97,6 +97,13 @@ export interface VariantSpec {
 
 export type GridValue = number | string;
 
+export interface TrialsRangeSpec {
+  min: number;
+  max: number;
+  /** Column the drawn trials are written to. Default "trials". */
+  column?: string;
+}
+
 export interface SurveyDesignSpec {
   seed: number | string;
   replicates: number;
@@ -109,8 +116,17 @@ export interface SurveyDesignSpec {
   response?: string;
   /** Response family. Default "gaussian". */
   family?: string;
-  /** Binomial designs: trials per observation (default 1: presence/absence). */
-  trials?: number;
+  /**
+   * Binomial designs: trials per observation (default 1: presence/absence), or a range
+   * `{ "min": 2, "max": 6, "column": "visits" }`: a whole number drawn uniformly from min..max for
+   * each observation, written to the column (default "trials") that binomial variants name as `trials`.
+   */
+  trials?: number | TrialsRangeSpec;
+  /**
+   * Count and detection designs: a numeric covariate added to the linear predictor with
+   * coefficient 1, as a model's `offset` (e.g. the log of survey effort: mean counts then scale with effort).
+   */
+  offset?: string;
   covariates?: CovariateSpec[];
   unequal?: UnequalSpec;
   truth: TruthSpec;
@@ -207,8 +223,12 @@ export interface SurveyDesign {
   replicates: number;
   response: string;
   family: string;
-  /** Binomial: trials per observation (1 otherwise). */
+  /** Binomial: trials per observation (1 otherwise); with `trialsRange`, its maximum. */
   trials: number;
+  /** Binomial: trials drawn per observation from min..max and written to `column`. */
+  trialsRange?: { min: number; max: number; column: string };
+  /** Numeric covariate added to the linear predictor with coefficient 1 (count and detection designs). */
+  offset?: string;
   factors: ResolvedFactor[];
   perCell: number;
   missing: number;

@@ -74,7 +74,7 @@ export function surveySentences(summary: SurveySummary, response?: string): stri
     lines.push(
       summary.responseMissing === 0
         ? `No missing values of \`${response}\`.`
-        : `${summary.responseMissing} values of \`${response}\` are missing (${percent(summary.responseMissing, summary.rows)}); those rows are left out of fits.`,
+        : `${summary.responseMissing} ${summary.responseMissing === 1 ? 'value' : 'values'} of \`${response}\` ${summary.responseMissing === 1 ? 'is' : 'are'} missing (${percent(summary.responseMissing, summary.rows)}); ${summary.responseMissing === 1 ? 'that row is' : 'those rows are'} left out of fits.`,
     );
   }
   const factorMissing = summary.factors.filter((f) => f.missing > 0);

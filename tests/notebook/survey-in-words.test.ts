@@ -38,7 +38,7 @@ describe('survey in words', () => {
   it('sentences: size, missing responses (with their share), balance, empty combinations, few levels', () => {
     const s = surveySentences(summary, 'cover');
     expect(s[0]).toBe('10 rows; 3 site levels, 2 year levels, 6 plot levels.');
-    expect(s[1]).toBe('1 values of `cover` are missing (10.0%); those rows are left out of fits.');
+    expect(s[1]).toBe('1 value of `cover` is missing (10.0%); that row is left out of fits.');
     expect(s.some((l) => l.startsWith('Unbalanced:'))).toBe(true);
     expect(s).toContain('`site` and `year`: 1 of 6 combinations were never observed.');
     expect(s[s.length - 1]).toMatch(/^`site` \(3\), `year` \(2\): fewer than 5 levels\./);

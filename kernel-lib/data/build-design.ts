@@ -43,7 +43,7 @@ import { countResponseColumns } from './count-response';
 import { codeColumn, nestFactor, sortFactor, type CodedFactor, type SortedFactor } from './factor';
 
 /** One factor of a fixed term after treatment coding. */
-interface CategoricalCoding {
+export interface CategoricalCoding {
   kind: 'categorical';
   codes: Int32Array;
   /** Index of the reference level (its rows get all zeros); -1 for one column per level. */
@@ -52,22 +52,22 @@ interface CategoricalCoding {
   names: string[];
 }
 
-interface NumericCoding {
+export interface NumericCoding {
   kind: 'numeric';
   values: Float64Array;
   names: [string];
 }
 
-type Coding = CategoricalCoding | NumericCoding;
+export type Coding = CategoricalCoding | NumericCoding;
 
 /** A block of X columns: a main effect (one coding) or an interaction (two). */
-interface FixedBlock {
+export interface FixedBlock {
   parts: Coding[];
   offset: number;
   width: number;
 }
 
-interface FixedGroupBlock {
+export interface FixedGroupBlock {
   coding: CategoricalCoding;
   slopes: Float64Array[];
   offset: number;
@@ -226,11 +226,7 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
       }
     }
     if (g.as === 'random') {
-      if (L === n) {
-        warnings.push(
-          `group "${g.factor}": ${L} levels for ${n} observations (one per level); its variance cannot be told apart from the residual variance`,
-        );
-      }
+      if (L === n) warnings.push(onePerLevelWarning(g.factor, L, n));
       random.push(randomTerm(g, factor, slopes));
     } else {
       const coding = treatmentCoding(g.factor, factor, g.reference, `${field}.reference`);
@@ -269,6 +265,11 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
   return { n, p, X, fixedNames, roles, y, random, levelCounts, droppedRows, rowIds, warnings, ...countColumns };
 }
 
+/** The warning for a random grouping factor with one observation per level. */
+export function onePerLevelWarning(factor: string, levels: number, n: number): string {
+  return `group "${factor}": ${levels} levels for ${n} observations (one per level); its variance cannot be told apart from the residual variance`;
+}
+
 /**
  * Copy the response of `data` at the rows of a design into `out` (allocated when absent), for
  * refitting the same design shape to a new response, as a simulation study does.
@@ -292,7 +293,7 @@ export function extractResponse(data: Columns, column: string, rowIds: Int32Arra
 // ---------------------------------------------------------------------------------------------
 
 /** Every column the model reads, first mention first, with the field that reads it. */
-function usedColumns(model: ResolvedModel): UsedColumn[] {
+export function usedColumns(model: ResolvedModel): UsedColumn[] {
   const out: UsedColumn[] = [];
   const seen = new Set<string>();
   const add = (column: string, field: string): void => {
@@ -315,7 +316,7 @@ function usedColumns(model: ResolvedModel): UsedColumn[] {
  * Reference level per column for fixed terms: an object term's reference, else the reference
  * of a fixed, non-nested grouping factor on the same column (so `x:site` matches `site=..`).
  */
-function columnReferences(model: ResolvedModel): Map<string, string> {
+export function columnReferences(model: ResolvedModel): Map<string, string> {
   const refs = new Map<string, string>();
   for (const g of model.groups) {
     if (g.as === 'fixed' && g.within === undefined && g.reference !== undefined) refs.set(g.factor, g.reference);
@@ -444,7 +445,7 @@ function entryValue(c: Coding, r: number): number {
   return c.kind === 'numeric' ? c.values[r] : 1;
 }
 
-function fillFixedBlock(X: Float64Array, p: number, n: number, b: FixedBlock): void {
+export function fillFixedBlock(X: Float64Array, p: number, n: number, b: FixedBlock): void {
   const [a, second] = b.parts;
   if (second === undefined) {
     for (let r = 0; r < n; r++) {
@@ -462,7 +463,7 @@ function fillFixedBlock(X: Float64Array, p: number, n: number, b: FixedBlock): v
   }
 }
 
-function fillGroupBlock(X: Float64Array, p: number, n: number, b: FixedGroupBlock): void {
+export function fillGroupBlock(X: Float64Array, p: number, n: number, b: FixedGroupBlock): void {
   const width = b.coding.names.length;
   for (let r = 0; r < n; r++) {
     const j = columnIndex(b.coding, r);

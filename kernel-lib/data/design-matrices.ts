@@ -66,4 +66,10 @@ export interface DesignMatrices {
   trials?: Float64Array;
   /** Count and detection models: offset added to the linear predictor, per observation. */
   offset?: Float64Array;
+  /**
+   * Changes whenever X, n, or the random terms' index or values were refilled in place (a design
+   * plan reuses one design object across a study's replicates, see ./design-plan). Anything kept per
+   * design object that depends on more than y must be rebuilt when it differs. Absent: never refilled.
+   */
+  revision?: number;
 }

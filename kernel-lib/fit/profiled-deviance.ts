@@ -38,7 +38,8 @@ function samePriority(a: number[] | undefined, b: number[] | undefined): boolean
 const engines = new WeakMap<DesignMatrices, [ProfiledDeviance | null, ProfiledDeviance | null]>();
 
 export class ProfiledDeviance {
-  readonly n: number;
+  /** Observations: changes only when a refilled design is rebound (see rebind). */
+  n: number;
   readonly p: number;
   /** Width of the augmented [X y] block. */
   readonly w: number;
@@ -76,6 +77,8 @@ export class ProfiledDeviance {
   inUse = false;
   /** Counts the fits that took this engine, so a fit's later work can tell whether another fit came between. */
   generation = 0;
+  /** The design's `revision` the design-only products were built from. */
+  private revision: number;
   /** The last evaluation failed a factorisation (reported, not thrown). */
   lastFailure = '';
   /** Every term has one column (random intercepts only): Λ is diagonal. */
@@ -100,6 +103,7 @@ export class ProfiledDeviance {
   constructor(design: DesignMatrices, reml: boolean) {
     this.design = design;
     this.source = design;
+    this.revision = design.revision ?? 0;
     this.reml = reml;
     this.n = design.n;
     this.p = design.p;
@@ -203,7 +207,8 @@ export class ProfiledDeviance {
     if (!kept) { kept = [null, null]; engines.set(design, kept); }
     const slot = reml ? 1 : 0;
     const dev = kept[slot];
-    if (dev && !dev.inUse && dev.n === design.y.length) {
+    if (dev && !dev.inUse && dev.revision !== (design.revision ?? 0)) dev.rebind();
+    if (dev && !dev.inUse && dev.revision === (design.revision ?? 0) && dev.n === design.y.length) {
       dev.refreshForNewFit();
       dev.inUse = true;
       dev.generation++;
@@ -214,6 +219,32 @@ export class ProfiledDeviance {
     if (!dev || !dev.inUse) kept[slot] = fresh;
     fresh.inUse = true;
     return fresh;
+  }
+
+  /**
+   * The design was refilled in place (X, n or the random terms' values; same columns, terms and
+   * levels): rebuild every product and forget the estimable columns, as a new engine would.
+   * A design whose shape changed is left alone (acquire then builds a new engine).
+   */
+  private rebind(): void {
+    const d = this.source;
+    const sameShape = d.p === this.p && d.random.length === this.terms.length
+      && this.terms.every((t) => this.termIndex.has(t.term) && t.term.levels.length === t.m && t.term.terms.length === t.k);
+    if (!sameShape) return;
+    this.n = d.n;
+    this.revision = d.revision ?? 0;
+    this.design = d;
+    this.estimable = null;
+    // a new engine's workspaces start at zero, and some entries outside the sparsity pattern are never written
+    for (const a of [this.l11, this.l21, this.l22, this.r, this.m, this.block, this.lambda2, ...this.templates]) a.fill(0);
+    if (this.effects) { this.effects.u.fill(0); this.effects.b.fill(0); }
+    if (this.inverse) {
+      const v = this.inverse;
+      for (const a of [...v.out, v.w11, v.col, v.w21, v.colq, v.w22, v.e]) a.fill(0);
+    }
+    this.buildDesignProducts();
+    this.buildResponseProducts();
+    if (this.allScalar) this.indexDenseBlockPattern();
   }
 
   /**

@@ -1,4 +1,5 @@
 import { buildDesign } from '../data/build-design';
+import { fillDesign, planDesign, type DesignPlan } from '../data/design-plan';
 import type { Columns } from '../data/columns';
 import type { DesignMatrices } from '../data/design-matrices';
 import { fitDesign, type IntervalMethod } from '../fit/fit-design';
@@ -10,6 +11,9 @@ import { createWorkspace, simulateInto, simulationPlan, type SimulatedData } fro
 import type { ResolvedVariant, SurveyDesign } from '../design/types';
 import { replicateStreams, type ReplicateStreams } from '../random/stream';
 import type { ReplicateKind, ReplicateRow, ReplicateStatus } from './replicate-row';
+
+/** Replicates tried for a coding plan before building every design the ordinary way. */
+const PLAN_TRIES = 5;
 
 /** Name of the SD parameter of a random term ("sd(site)", "sd(site:x)") or of the residual ("sd(residual)"). */
 export function sdParameterName(factor: string, term: string): string {
@@ -32,6 +36,12 @@ export class ReplicateRunner {
 
   /** Target projector per variant of each scenario, built on first use. */
   private readonly projectors = new Map<ResolvedVariant, TargetProjector>();
+
+  /**
+   * Coding plan per variant of each scenario: the design is coded once and refilled per replicate.
+   * A number counts the replicates that could not give a plan (e.g. a level absent); after a few, none is tried.
+   */
+  private readonly plans = new Map<ResolvedVariant, DesignPlan | number>();
 
   constructor(readonly design: SurveyDesign) {
     design.variants.forEach((v, i) => this.intervals.set(v.name, checkInterval(v.model.interval, `design.variants[${i}].model.interval`)));
@@ -73,6 +83,23 @@ export class ReplicateRunner {
     return projector;
   }
 
+  /**
+   * The variant's design for this data set: the plan's design refilled in place (the same numbers
+   * buildDesign gives), else built the ordinary way (which also names any input error).
+   */
+  private designFor(variant: ResolvedVariant, data: SimulatedData): DesignMatrices {
+    const plan = this.plans.get(variant) ?? 0;
+    if (typeof plan !== 'number') {
+      const refilled = fillDesign(plan, data.columns as Columns);
+      if (refilled) return refilled;
+    }
+    const built = buildDesign(data.columns as Columns, variant.model);
+    if (typeof plan === 'number' && plan < PLAN_TRIES) {
+      this.plans.set(variant, planDesign(data.columns as Columns, variant.model, built, data.n + data.dropped) ?? plan + 1);
+    }
+    return built;
+  }
+
   private runReplicate(scenario: Scenario, scenarioIndex: number, replicate: number, rows: ReplicateRow[]): void {
     const data = this.simulate(scenarioIndex, replicate);
     for (const variant of scenario.design.variants) {
@@ -80,7 +107,7 @@ export class ReplicateRunner {
       let design: DesignMatrices | null = null;
       let reason = '';
       try {
-        design = buildDesign(data.columns as Columns, variant.model);
+        design = this.designFor(variant, data);
         fit = fitDesign(design, {
           family: variant.model.family,
           integration: variant.model.integration,

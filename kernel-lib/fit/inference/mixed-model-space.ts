@@ -41,8 +41,8 @@ export interface MixedModelSpace {
   hc: Float64Array;
 }
 
-/** C per design object: it depends on X and Z only, which a design keeps once fitted (see ProfiledDeviance.acquire). */
-const crossProducts = new WeakMap<DesignMatrices, Float64Array>();
+/** C per design object: it depends on X and Z only, rebuilt when a refilled design changes its revision (see ProfiledDeviance.acquire). */
+const crossProducts = new WeakMap<DesignMatrices, { revision: number; c: Float64Array }>();
 
 /**
  * C = [Z X]ᵀ[Z X] with Z columns in the engine's order (term by term, level by level, effect by effect).
@@ -50,9 +50,10 @@ const crossProducts = new WeakMap<DesignMatrices, Float64Array>();
  */
 function crossProductOfZX(design: DesignMatrices, dev: ProfiledDeviance): Float64Array {
   const kept = crossProducts.get(design);
-  if (kept && kept.length === (dev.q + design.p) ** 2) return kept;
+  const revision = design.revision ?? 0;
+  if (kept && kept.revision === revision && kept.c.length === (dev.q + design.p) ** 2) return kept.c;
   const c = buildCrossProductOfZX(design, dev);
-  crossProducts.set(design, c);
+  crossProducts.set(design, { revision, c });
   return c;
 }
 

@@ -49,7 +49,6 @@ const EXEMPT = {
   'fit/inference/mixed-model-space': 'exercised only indirectly; own file not written yet',
   'fit/inference/satterthwaite': 'exercised only indirectly; own file not written yet',
   'fit/inference/variance-parameters': 'exercised only indirectly; own file not written yet',
-  'notebook/fit-tables': 'exercised through tests/fit/comparison.test.ts (among others); own file not written yet',
   'plots/layout': 'exercised only indirectly; own file not written yet',
   'plots/normal-quantile': 'exercised through tests/plots/residuals-vs-fitted.test.ts (among others); own file not written yet',
   'plots/plot-input': 'being reworked into the shared input-checking vocabulary; own file to come with it',

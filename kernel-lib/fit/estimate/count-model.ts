@@ -75,7 +75,7 @@ export interface CountEstimate {
   nodes: number;
   estimable: number[];
   aliased: number[];
-  /** XᵀX of the full design (p × p), for explaining aliased columns (kept with the design: read only). */
+  /** XᵀX of the full design (p × p), for explaining aliased columns (shared by the fits of one design revision: read only). */
   xtx: Float64Array;
   /** Estimates of the estimable columns, in `estimable` order. */
   beta: Float64Array;
@@ -113,6 +113,8 @@ interface CountWorkspace {
   offsetSource: Float64Array | undefined;
   priority: number[] | undefined;
   n: number;
+  /** The design's revision the workspace was built or refreshed for. */
+  revision: number;
   xtx: Float64Array;
   alias: ReturnType<typeof aliasingFromCrossProducts>;
   design: DesignMatrices;
@@ -139,30 +141,68 @@ function samePriority(a: number[] | undefined, b: number[] | undefined): boolean
   return a.length === b.length && a.every((v, i) => v === b[i]);
 }
 
-/** The workspace kept for this design object when it matches (family, trials, offset, priority) and is free; else a new one. */
+/** A design refilled in place (a study's design plan) carries a new revision; absent means never refilled. */
+function revisionOf(design: DesignMatrices): number {
+  return (design as { revision?: number }).revision ?? 0;
+}
+
+/** XᵀX of the full design (p × p, both triangles) into `out`. */
+function crossProduct(full: DesignMatrices, out: Float64Array): void {
+  const { n, p, X } = full;
+  out.fill(0);
+  for (let i = 0, r = 0; i < n; i++, r += p) {
+    for (let a = 0; a < p; a++) for (let b = 0; b <= a; b++) out[a * p + b] += X[r + a] * X[r + b];
+  }
+  for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) out[a * p + b] = out[b * p + a];
+}
+
+/**
+ * The workspace kept for this design object when it matches (family, trials, offset, priority) and
+ * is free; else a new one. A design refilled in place keeps its workspace when the shape and the
+ * estimable columns stay the same (the GLM and quadrature steps read X, the offset and the random
+ * term through the same arrays); only XᵀX and the groups are recomputed.
+ */
 function acquireWorkspace(full: DesignMatrices, options: CountFitOptions): CountWorkspace {
   const kept = workspaces.get(full);
   const family = options.family;
+  const revision = revisionOf(full);
   if (
     kept && !kept.inUse && kept.family === family && kept.trials === options.trials && kept.offsetSource === options.offset &&
     kept.n === full.n && samePriority(kept.priority, options.priority)
   ) {
-    kept.inUse = true;
-    return kept;
+    if (kept.revision === revision) {
+      kept.inUse = true;
+      return kept;
+    }
+    const sameShape = kept.design === full && kept.glm.X === full.X && kept.design.random.length === full.random.length &&
+      (!kept.quad || (kept.quad.X === full.X && kept.quad.m === full.random[0].levels.length));
+    if (sameShape) {
+      // a new XᵀX array: results of earlier fits may still hold the old one
+      const xtx = new Float64Array(full.p * full.p);
+      crossProduct(full, xtx);
+      const alias = aliasingFromCrossProducts(xtx, full.p, full.p, options.priority);
+      if (alias.aliased.length === 0) {
+        kept.xtx = xtx;
+        kept.alias = alias;
+        kept.revision = revision;
+        if (options.trials) kept.response.trials.set(options.trials);
+        if (kept.quad) kept.quad.setGroups(full.random[0]);
+        kept.layout = null;
+        kept.inUse = true;
+        return kept;
+      }
+    }
   }
   const n = full.n;
   const xtx = new Float64Array(full.p * full.p);
-  for (let i = 0; i < n; i++) {
-    for (let a = 0; a < full.p; a++) for (let b = 0; b <= a; b++) xtx[a * full.p + b] += full.X[i * full.p + a] * full.X[i * full.p + b];
-  }
-  for (let a = 0; a < full.p; a++) for (let b = a + 1; b < full.p; b++) xtx[a * full.p + b] = xtx[b * full.p + a];
+  crossProduct(full, xtx);
   const alias = aliasingFromCrossProducts(xtx, full.p, full.p, options.priority);
   const design = restrictColumns(full, alias.estimable);
   const offset = options.offset ?? new Float64Array(n);
   const response = new GlmResponse(family, n, options.trials);
   const oneIntercept = design.random.length === 1 && design.random[0].terms.length === 1;
   const ws: CountWorkspace = {
-    family, trials: options.trials, offsetSource: options.offset, priority: options.priority ? options.priority.slice() : undefined, n,
+    family, trials: options.trials, offsetSource: options.offset, priority: options.priority ? options.priority.slice() : undefined, n, revision,
     xtx, alias, design, offset, response, glm: new GlmIrls(design.X, design.p, offset, response),
     quad: oneIntercept ? new OneInterceptQuadrature(design.X, design.p, offset, response, design.random[0]) : null,
     eta: new Float64Array(n), score: new Float64Array(n), weight: new Float64Array(n),

@@ -28,7 +28,7 @@ export class OneInterceptQuadrature {
   private readonly eta: Float64Array;
   private readonly score: Float64Array;
   private readonly weight: Float64Array;
-  private readonly index: Int32Array;
+  private index: Int32Array;
   private readonly fisher: Float64Array;
   private readonly a: Float64Array;
   private readonly c: Float64Array;
@@ -57,14 +57,10 @@ export class OneInterceptQuadrature {
     this.m = term.levels.length;
     const { n, m } = this;
     this.groupStart = new Int32Array(m + 1);
-    for (let i = 0; i < n; i++) this.groupStart[term.index[i] + 1]++;
-    for (let j = 0; j < m; j++) this.groupStart[j + 1] += this.groupStart[j];
     this.groupRows = new Int32Array(n);
-    const fill = this.groupStart.slice(0, m);
-    for (let i = 0; i < n; i++) this.groupRows[fill[term.index[i]]++] = i;
-    const k = term.terms.length;
     this.z = new Float64Array(n);
-    for (let i = 0; i < n; i++) this.z[i] = term.values[i * k];
+    this.index = term.index;
+    this.setGroups(term);
     this.modes = new Float64Array(m);
     this.curvature = new Float64Array(m);
     this.fixedPart = new Float64Array(n);
@@ -72,7 +68,6 @@ export class OneInterceptQuadrature {
     this.score = new Float64Array(n);
     this.weight = new Float64Array(n);
     this.fisher = new Float64Array(n);
-    this.index = term.index;
     this.a = new Float64Array(p * p);
     this.c = new Float64Array(m * p);
     this.d = new Float64Array(m);
@@ -87,6 +82,24 @@ export class OneInterceptQuadrature {
     this.dH = new Float64Array(p + 1);
     this.gPsi = new Float64Array(p + 1);
     this.acc = new Float64Array(p + 1);
+  }
+
+  /**
+   * Rows of each group and the term's column z, from the term's index and values (same n and
+   * levels); called again when a design is refilled in place.
+   */
+  setGroups(term: RandomTerm): void {
+    const { n, m, groupStart, groupRows, z } = this;
+    this.index = term.index;
+    groupStart.fill(0);
+    for (let i = 0; i < n; i++) groupStart[term.index[i] + 1]++;
+    for (let j = 0; j < m; j++) groupStart[j + 1] += groupStart[j];
+    // fill each group from its end (rows ascending within a group); groupStart[j + 1] then holds group j's start
+    for (let i = n - 1; i >= 0; i--) groupRows[--groupStart[term.index[i] + 1]] = i;
+    for (let j = 0; j < m; j++) groupStart[j] = groupStart[j + 1];
+    groupStart[m] = n;
+    const k = term.terms.length;
+    for (let i = 0; i < n; i++) z[i] = term.values[i * k];
   }
 
   /** η = offset + Xβ + θ z u_group for every observation. */

@@ -262,3 +262,28 @@ describe('every grouping structure works with the Laplace approximation', () => 
     expect(fit.logLik).toBeGreaterThanOrEqual(estimateCountModel(oneFactor, { family: 'poisson' }).logLik - 1e-6);
   });
 });
+
+describe('a design refilled in place (a study reusing one design object)', () => {
+  it('after X, y and the group index change under a new revision, the fit equals a fit of a fresh design', () => {
+    // identity: the kept workspace must not remember the previous replicate (common practice, no source)
+    const a = structuredData(11);
+    const b = structuredData(12);
+    const shuffled = b.site.map((s) => (s + 3) % 8);
+    const design = handDesign(a.X, ['intercept', 'x'], a.y, [{ factor: 'site', index: a.site }]);
+    const first = estimateCountModel(design, { family: 'poisson' });
+    const fresh = handDesign(b.X, ['intercept', 'x'], b.y, [{ factor: 'site', index: shuffled }]);
+    const expected = estimateCountModel(fresh, { family: 'poisson' });
+    // refill the first design's arrays in place, as a design plan does, and bump its revision
+    design.X.set(fresh.X);
+    design.y.set(fresh.y);
+    design.random[0].index.set(fresh.random[0].index);
+    (design as { revision?: number }).revision = 1;
+    const refit = estimateCountModel(design, { family: 'poisson' });
+    expect(refit.logLik).toBe(expected.logLik);
+    expect(Array.from(refit.beta)).toEqual(Array.from(expected.beta));
+    expect(refit.theta[0]).toBe(expected.theta[0]);
+    expect(refit.logLik).not.toBe(first.logLik);
+    // the same design object and revision reuses the workspace with the same result
+    expect(estimateCountModel(design, { family: 'poisson' }).logLik).toBe(expected.logLik);
+  });
+});

@@ -4,7 +4,8 @@
  * rooms below it, and no files import each other in a cycle. Prints each violation and exits 1.
  * Usage: node scripts/check-imports.js [root]   (default: kernel-lib)
  */
-const { readdirSync, readFileSync, statSync } = require('node:fs');
+const { readFileSync } = require('node:fs');
+const { listTsFiles } = require('./library-files');
 const { join, relative, resolve, dirname, sep } = require('node:path');
 
 /** Rooms from the ground up; a room may import any room with a lower rank. */
@@ -12,15 +13,6 @@ const ROOMS = ['numeric', 'random', 'model', 'data', 'family', 'fit', 'analyse',
 /** Rooms that may be imported only for their types from the given rooms (checked below). */
 const TYPE_ONLY = { plots: ['study', 'fit', 'design', 'data', 'model'] };
 
-function listFiles(dir) {
-  const out = [];
-  for (const name of readdirSync(dir)) {
-    const full = join(dir, name);
-    if (statSync(full).isDirectory()) out.push(...listFiles(full));
-    else if (name.endsWith('.ts') && !name.endsWith('.d.ts')) out.push(full);
-  }
-  return out;
-}
 
 /** Relative imports of a file: [{ target, typeOnly }]. */
 function importsOf(file) {
@@ -45,7 +37,7 @@ function roomOf(root, file) {
 }
 
 function check(root) {
-  const files = listFiles(root);
+  const files = listTsFiles(root);
   const graph = new Map();
   const problems = [];
   for (const file of files) {

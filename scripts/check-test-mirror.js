@@ -13,7 +13,8 @@
  * Usage: node scripts/check-test-mirror.js [--list]   (--list prints every module and its state)
  */
 const ts = require('typescript');
-const { readdirSync, readFileSync, statSync, existsSync } = require('node:fs');
+const { readFileSync, existsSync } = require('node:fs');
+const { listTsFiles } = require('./library-files');
 const { join, relative, resolve } = require('node:path');
 
 const ROOT = resolve(__dirname, '..');
@@ -61,15 +62,6 @@ const EXEMPT = {
   'study/study-folder': 'exercised through tests/study/run-study.test.ts (among others); own file not written yet',
 };
 
-function listFiles(dir) {
-  const out = [];
-  for (const name of readdirSync(dir)) {
-    const full = join(dir, name);
-    if (statSync(full).isDirectory()) out.push(...listFiles(full));
-    else if (name.endsWith('.ts') && !name.endsWith('.d.ts')) out.push(full);
-  }
-  return out;
-}
 
 /** True when the file contains anything that runs: a function body or a class. */
 function hasLogic(file) {
@@ -91,7 +83,7 @@ function hasLogic(file) {
   return found;
 }
 
-const modules = listFiles(LIB).map((f) => relative(LIB, f).replace(/\\/g, '/').replace(/\.ts$/, '')).sort();
+const modules = listTsFiles(LIB).map((f) => relative(LIB, f).replace(/\\/g, '/').replace(/\.ts$/, '')).sort();
 const withLogic = modules.filter((m) => hasLogic(join(LIB, `${m}.ts`)));
 const hasTest = (m) => existsSync(join(TESTS, `${m}.test.ts`));
 

@@ -3,6 +3,7 @@ import * as aq from 'arquero';
 import { fitModel, fitResolvedModel } from '../../kernel-lib/analyse/fit-model';
 import { parseModel } from '../../kernel-lib/model/parse';
 import { inputError } from '../helpers/input-error';
+import { oneWayMeanSquares } from '../helpers/one-way-anova';
 
 // Invented balanced survey: 5 sites × 4 quadrats, cover (%) of one species.
 const cover = [
@@ -15,22 +16,12 @@ const cover = [
 const records = cover.flatMap((g, s) => g.map((v, q) => ({ site: `site${s + 1}`, quadrat: q + 1, cover: v })));
 const model = { response: 'cover', groups: [{ factor: 'site', as: 'random' as const }] };
 
-/** ANOVA mean squares of the balanced one-way layout (Searle, Casella and McCulloch 1992, Variance Components, ch. 3). */
-function anova() {
-  const a = cover.length;
-  const m = cover[0].length;
-  const means = cover.map((g) => g.reduce((s, v) => s + v, 0) / m);
-  const grand = means.reduce((s, v) => s + v, 0) / a;
-  const msb = (m * means.reduce((s, v) => s + (v - grand) ** 2, 0)) / (a - 1);
-  const msw = cover.reduce((s, g, i) => s + g.reduce((t, v) => t + (v - means[i]) ** 2, 0), 0) / (a * (m - 1));
-  return { a, m, grand, msb, msw };
-}
 
 describe('fitModel: balanced one-way random intercept against the ANOVA estimators', () => {
   // REML equals the ANOVA estimators when MSB > MSW: σ̂² = MSW, σ̂²_site = (MSB − MSW)/m, and the
   // intercept is the grand mean with variance MSB/(a m) (Searle, Casella and McCulloch 1992, ch. 3 and 6).
   it('estimates, SDs and the SE of the intercept', () => {
-    const { a, m, grand, msb, msw } = anova();
+    const { a, m, grand, msb, msw } = oneWayMeanSquares(cover);
     const fit = fitModel(records, model);
     const intercept = fit.fixed.find((r) => r.term === 'intercept')!;
     expect(intercept.estimate).toBeCloseTo(grand, 8);

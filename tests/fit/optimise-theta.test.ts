@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { BOUNDARY_TOLERANCE, optimiseTheta } from '../../kernel-lib/fit/optimise-theta';
 import { ProfiledDeviance } from '../../kernel-lib/fit/profiled-deviance';
 import { handDesign } from '../helpers/simple-design';
+import { oneWayMeanSquares } from '../helpers/one-way-anova';
 
 /** A stand-in criterion with a known minimum, shaped like the engine's ProfiledDeviance. */
 function criterion(f: (theta: Float64Array) => number, lowerBounds: number[], start?: number[]): ProfiledDeviance {
@@ -20,16 +21,6 @@ function oneWay(y: number[][]) {
   const index = y.flatMap((g, i) => g.map(() => i));
   return handDesign(flat.map(() => [1]), ['intercept'], flat, [{ factor: 'g', index }]);
 }
-/** Mean squares between and within groups (Searle, Casella and McCulloch 1992, Variance Components, ch. 3). */
-function meanSquares(y: number[][]) {
-  const a = y.length;
-  const m = y[0].length;
-  const means = y.map((g) => g.reduce((s, v) => s + v, 0) / m);
-  const grand = means.reduce((s, v) => s + v, 0) / a;
-  const msb = (m * means.reduce((s, v) => s + (v - grand) ** 2, 0)) / (a - 1);
-  const msw = y.reduce((s, g, i) => s + g.reduce((t, v) => t + (v - means[i]) ** 2, 0), 0) / (a * (m - 1));
-  return { msb, msw, m };
-}
 
 describe('optimiseTheta on the engine criterion: balanced one-way REML in closed form', () => {
   // REML for balanced data equals the ANOVA estimators when they are non-negative:
@@ -37,7 +28,7 @@ describe('optimiseTheta on the engine criterion: balanced one-way REML in closed
   // and θ̂ = 0 when MSB ≤ MSW (same chapter: the REML estimate is truncated at the boundary).
   it('reaches θ = sqrt((MSB − MSW)/(m · MSW)) (invented data, 4 groups of 3)', () => {
     const y = [[10.1, 11.3, 9.8], [13.2, 12.7, 14.1], [8.9, 9.6, 10.4], [12.0, 11.1, 12.9]];
-    const { msb, msw, m } = meanSquares(y);
+    const { msb, msw, m } = oneWayMeanSquares(y);
     expect(msb).toBeGreaterThan(msw);
     const r = optimiseTheta(new ProfiledDeviance(oneWay(y), true));
     expect(r.converged).toBe(true);
@@ -46,7 +37,7 @@ describe('optimiseTheta on the engine criterion: balanced one-way REML in closed
 
   it('lands exactly on θ = 0 when groups differ less than within-group noise predicts', () => {
     const y = [[10.0, 12.0, 8.0], [10.2, 11.8, 8.1], [9.9, 12.1, 8.2]];
-    const { msb, msw } = meanSquares(y);
+    const { msb, msw } = oneWayMeanSquares(y);
     expect(msb).toBeLessThan(msw);
     const r = optimiseTheta(new ProfiledDeviance(oneWay(y), true));
     expect(r.theta[0]).toBe(0);

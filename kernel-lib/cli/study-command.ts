@@ -7,6 +7,7 @@ import { parseWholeNumber } from '../model/option-checks';
 import { parseShard } from '../study/batch-plan';
 import type { MetricRow } from '../study/metrics';
 import { failureWarnings } from '../study/failure-warnings';
+import { otherScaleNotes } from '../study/variant-scales';
 import { mergeShards } from '../study/merge-shards';
 import { runStudy } from '../study/run-study';
 import { readStudy, readingText } from '../study/reading';
@@ -63,7 +64,10 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
       return 130;
     }
     print(`done in ${result.seconds.toFixed(1)} s: ${result.batchesRun} batches run, ${result.batchesSkipped} already on disk, in ${result.folder}`);
-    if (result.metrics) print(formatMetricsTable(result.metrics));
+    if (result.metrics) {
+      for (const n of otherScaleNotes(result.metrics)) print(`note: ${n}`);
+      print(formatMetricsTable(result.metrics));
+    }
     else if (values.shard) print(`shard ${values.shard} complete; combine shards with: quadrat study merge <folders>... --out <folder>`);
     return 0;
   }
@@ -77,6 +81,7 @@ export async function studyCommand(argv: string[], print: (s: string) => void): 
       print(JSON.stringify(metrics.map((m) => ({ ...m, value: Number.isFinite(m.value) ? m.value : null, mcse: Number.isFinite(m.mcse) ? m.mcse : null })), null, 1));
     } else {
       for (const w of failureWarnings(metrics)) print(`warning: ${w}`);
+      for (const n of otherScaleNotes(metrics)) print(`note: ${n}`);
       // the answer first, then the table it comes from
       print(readingText(readStudy(metrics, readManifest(positionals[0]).scenarios)));
       print('');

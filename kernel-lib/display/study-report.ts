@@ -2,6 +2,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import { metricVsScenario } from '../plots/metric-vs-scenario';
 import { sdRecovery } from '../plots/sd-recovery';
 import { failureWarnings } from '../study/failure-warnings';
+import { otherScaleNotes } from '../study/variant-scales';
 import type { MetricRow } from '../study/metrics';
 import { parseReplicateCsv } from '../study/replicate-csv';
 import type { ReplicateRow } from '../study/replicate-row';
@@ -107,6 +108,7 @@ export async function studyReportHtml(results: StudyResults, title = 'Simulation
         `${manifest.replicates} replicates in each of ${manifest.scenarios.length} scenarios` +
           (manifest.scenarios.length > 1 ? ` (${manifest.scenarios.map((s) => s.key).join('; ')})` : '') + '.',
         `Analysis variants: ${(design.variants ?? []).map((v) => `**${v.name}**`).join(', ')}.`,
+        ...otherScaleNotes(metrics).map((n) => `Only power and type I error for ${n.replace(/^([^:]*):/, '**$1**:')}.`),
         'Error bars and bands show ±2 Monte Carlo standard errors.',
       ].join('\n\n'),
     },

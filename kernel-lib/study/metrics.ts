@@ -69,6 +69,12 @@ export interface SummariseOptions {
    * coverage is compared with it and type I error with 1 − level. Groups not listed use `level`.
    */
   levels?: Record<string, Record<string, number>>;
+  /**
+   * Variants on another scale than the truth, by scenario key then variant name, with the reason
+   * (./variant-scales): their parameters get only power, type I error and noIntervalShare, and
+   * every row of theirs carries the reason in its note.
+   */
+  otherScale?: Record<string, Record<string, string>>;
 }
 
 /**
@@ -101,13 +107,16 @@ export function summarise(rows: readonly ReplicateRow[], options: SummariseOptio
   const groups = groupRows(rows);
   const out: MetricRow[] = [];
   for (const group of groups) {
+    const start = out.length;
     appendShareMetrics(out, group);
     const own = options.levels?.[group.scenario]?.[group.variant];
     if (own !== undefined && !(own > 0 && own < 1)) {
       throw new Error(`summarise: options.levels for scenario '${group.scenario}', variant '${group.variant}' must lie strictly between 0 and 1, got ${own}`);
     }
+    const scaleNote = options.otherScale?.[group.scenario]?.[group.variant];
+    if (scaleNote !== undefined) for (let i = start; i < out.length; i++) out[i].note = joinNotes(scaleNote, out[i].note);
     for (const p of group.parameterOrder) {
-      appendParameterMetrics(out, p, own ?? level, own === undefined ? alpha : 1 - own);
+      appendParameterMetrics(out, p, own ?? level, own === undefined ? alpha : 1 - own, scaleNote);
     }
   }
   return out;
@@ -245,7 +254,7 @@ function push(
   out.push(row);
 }
 
-function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level: number, alpha: number): void {
+function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level: number, alpha: number, scaleNote?: string): void {
   const base: RowBase = { scenario: p.scenario, variant: p.variant, parameter: p.parameter, kind: p.kind };
   // A coefficient the variant cannot estimate (aliased) keeps a row saying so, whatever else is missing.
   let aliasedNote: string | undefined;
@@ -271,6 +280,10 @@ function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level
   const fewNote = n < 2 ? 'n < 2: MCSE needs at least 2 replicates' : undefined;
   const estNote = joinNotes(excluded, fewNote);
   const isSd = p.kind === 'sd';
+  if (scaleNote !== undefined) {
+    appendTestMetrics(out, base, p, alpha, joinNotes(scaleNote, excluded));
+    return;
+  }
 
   // One empirical SE for every metric that uses it: the spread of estimate − truth, which is
   // Morris et al.'s EmpSE when the truth is fixed and, when the target varies by replicate
@@ -347,6 +360,25 @@ function appendParameterMetrics(out: MetricRow[], p: ParameterAccumulator, level
       out.push(rej);
     }
   }
+}
+
+/** Only the test-based metrics (power or type I error, and the share without an interval) of a variant on another scale. */
+function appendTestMetrics(out: MetricRow[], base: RowBase, p: ParameterAccumulator, alpha: number, note: string | undefined): void {
+  if (p.kind !== 'fixed') return;
+  const n = p.estimate.n;
+  if (p.missingInterval > 0) {
+    const share = proportionRow(base, 'noIntervalShare', p.missingInterval, n);
+    share.note = joinNotes(note, 'replicates whose fit gave no finite interval; left out of power', share.note);
+    out.push(share);
+  }
+  const k = p.width.n;
+  if (k === 0) return;
+  const truth = p.truthVaries ? p.truths.mean : p.truth;
+  const rej = truth === 0 && !p.truthVaries
+    ? proportionRow(base, 'typeIError', p.excludesZero, k, alpha)
+    : proportionRow(base, 'power', p.excludesZero, k);
+  rej.note = joinNotes(note, rej.note);
+  out.push(rej);
 }
 
 function appendModelSEMetrics(out: MetricRow[], base: RowBase, p: ParameterAccumulator, excluded?: string): void {

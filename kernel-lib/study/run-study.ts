@@ -15,6 +15,7 @@ import { parseReplicateCsv, replicateRowsToCsv } from './replicate-csv';
 import type { ReplicateRow } from './replicate-row';
 import { ReplicateRunner } from './replicate-runner';
 import { variantLevels } from './variant-levels';
+import { variantScales } from './variant-scales';
 import { checkStudyOptions } from './check-study-options';
 import { assembleReplicates, fingerprintOf, openStudyFolder, readManifest, type StudyManifest } from './study-folder';
 import { checkBatches, removeBatch, removeStaleTemporaries, writeAtomic, writeBatch, type BatchStamp } from './batch-files';
@@ -269,15 +270,18 @@ export function finalise(folder: string, batches: Batch[], study = ''): { metric
   const text = assembleReplicates(folder, batches, study);
   if (text === null) return null;
   const rows = parseReplicateCsv(text, 'replicates.csv');
-  const metrics = summarise(rows, { levels: variantLevels(parseDesign(readManifest(folder).design)) });
+  const design = parseDesign(readManifest(folder).design);
+  const metrics = summarise(rows, { levels: variantLevels(design), otherScale: variantScales(design) });
   writeAtomic(metricsJsonPath(folder), JSON.stringify(metrics, null, 1));
   writeAtomic(metricsCsvPath(folder), metricsToCsv(metrics));
   return { metrics, rows };
 }
 
 function metricsToCsv(metrics: MetricRow[]): string {
-  const cols = ['scenario', 'variant', 'parameter', 'kind', 'metric', 'value', 'mcse', 'n'] as const;
+  const cols = ['scenario', 'variant', 'parameter', 'kind', 'metric', 'value', 'mcse', 'n', 'note'] as const;
   const lines = [cols.join(',')];
-  for (const m of metrics) lines.push(cols.map((c) => (typeof m[c] === 'string' ? csvField(m[c] as string) : Number.isNaN(m[c] as number) ? '' : String(m[c]))).join(','));
+  for (const m of metrics) {
+    lines.push(cols.map((c) => (c === 'note' ? csvField(m.note ?? '') : typeof m[c] === 'string' ? csvField(m[c] as string) : Number.isNaN(m[c] as number) ? '' : String(m[c]))).join(','));
+  }
   return `${lines.join('\n')}\n`;
 }

@@ -27,9 +27,9 @@ const UNTRUSTED = 'received-copy.ipynb';
 const ARTIFACTS = path.join(ROOT, 'tests', 'artifacts');
 const CHROMIUM = '/usr/bin/chromium';
 const SERVER = 'jupyter-notebook';
-const TEST_TIMEOUT_MS = 300_000;
+const TEST_TIMEOUT_MS = 420_000;
 /** One run of all cells (the kernel's first cell compiles the library: about 10 s on a quiet machine). */
-const RUN_ALL_TIMEOUT_MS = 150_000;
+const RUN_ALL_TIMEOUT_MS = 180_000;
 
 const { registerKernel } = require('../../scripts/register-kernel.js') as {
   registerKernel: (jupyterPath: string) => { kernelName: string };
@@ -350,6 +350,7 @@ describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the clas
         expect(pictures, 'each chart shows its picture in the untrusted copy').toBe(second.charts.flat().length);
         expect(untrusted.charts.flat().every((svg) => svg === ''), 'no live chart in the untrusted copy').toBe(true);
         await other.close();
+        lap('untrusted copy');
         expect(pageErrors).toEqual([]);
 
         // Stop the server as a user does (SIGTERM to its process group); its kernel must end with it.

@@ -8,8 +8,8 @@ import { parseModel } from '../model/parse';
 import { buildDesign } from '../data/build-design';
 import { toColumns, type Columns, type TableLike } from '../data/columns';
 import { fitDesign, type FitOptions } from '../fit/fit-design';
-import { checkFitOptions, checkInterval } from '../fit/check-fit-options';
-import { QuadratInputError } from '../model/errors';
+import { checkFitOptions } from '../fit/check-fit-options';
+import { checkInterval } from '../model/interval-rule';
 
 export type SurveyData = Columns | readonly object[] | TableLike;
 
@@ -21,11 +21,12 @@ export function fitModel(data: SurveyData, model: ModelSpec | ResolvedModel | st
 /** Fit a model already parsed by parseModel (so a caller that needs the parsed model parses once). */
 export function fitResolvedModel(data: SurveyData, model: ResolvedModel, options: FitOptions = {}): FitResult {
   checkFitOptions(options);
-  const interval = checkInterval(options.interval ?? model.interval, options.interval === undefined ? 'model.interval' : 'options.interval');
   const estimation = options.estimation ?? model.estimation;
-  if (interval === 'kenward-roger' && estimation === 'ML' && model.groups.some((g) => g.as === 'random')) {
-    throw new QuadratInputError('model.interval: "kenward-roger" is defined for REML fits only, but model.estimation is "ML"; use estimation "REML" or interval "satterthwaite"', { field: 'model.interval' });
-  }
+  // an option that overrides the model's method or estimation is named as the culprit
+  const interval = checkInterval(
+    options.interval ?? model.interval, { family: model.family, estimation, random: model.groups.some((g) => g.as === 'random') },
+    options.interval === undefined ? 'model.interval' : 'options.interval', options.estimation === undefined ? 'model.estimation' : 'options.estimation',
+  );
   const design = buildDesign(toColumns(data as Columns), model);
   return fitDesign(design, {
     family: model.family, integration: model.integration, nodes: model.nodes,

@@ -3,6 +3,7 @@ import { join, relative } from 'node:path';
 import { parseArgs } from 'node:util';
 import { readFileSync } from 'node:fs';
 import { studyReportHtml } from '../display/study-report';
+import { parseWholeNumber } from '../model/option-checks';
 import { readManifest } from '../study/study-folder';
 import { metricsCsvPath, reportPath } from '../study/folder-layout';
 import { formatMetricsTable } from './metrics-table';
@@ -23,7 +24,8 @@ export async function demoCommand(argv: string[], print: (s: string) => void): P
   const design = JSON.parse(readFileSync(join(PROJECT_ROOT, 'data', 'demo-study.json'), 'utf8'));
   print('Demo study of an invented survey (data/demo-study.json): tussock-sedge height at the fictional Larkspur Fen,');
   print('6 sites × 3 plots, 2 visits a year; is "year" better random or fixed with 3, 4, 6 or 8 survey years?\n');
-  const result = await runStudyWithProgress(design, { out, workers: values.workers ? Number(values.workers) : undefined }, print);
+  const workers = values.workers === undefined ? undefined : parseWholeNumber(values.workers, '--workers', 1);
+  const result = await runStudyWithProgress(design, { out, workers }, print);
   if (result.interrupted || !result.metrics) {
     print(`interrupted; run the same command again to resume (results so far in ${out})`);
     return 130;

@@ -4,6 +4,7 @@ import { readCsvFile } from '../data/csv';
 import { designFromSurvey } from '../design/from-survey';
 import { QuadratInputError } from '../model/errors';
 import { parseModel } from '../model/parse';
+import { parseWholeNumber } from '../model/option-checks';
 import { csvOptions } from './fit-command';
 import { COMMAND_HELP } from './help';
 import { readJsonFile } from './read-json-file';
@@ -23,11 +24,7 @@ export function designCommand(argv: string[], print: (s: string) => void): numbe
   });
   if (positionals.length !== 1) throw new QuadratInputError(`design from-survey: expected one survey CSV file; usage: ${USAGE}`, { field: 'survey' });
   if (!values.model) throw new QuadratInputError(`design from-survey: --model <model.json> is required; usage: ${USAGE}`, { field: '--model' });
-  let replicates: number | undefined;
-  if (values.replicates !== undefined) {
-    replicates = Number(values.replicates);
-    if (!Number.isInteger(replicates) || replicates < 1) throw new QuadratInputError(`--replicates: expected a whole number ≥ 1, got "${values.replicates}"`, { field: '--replicates' });
-  }
+  const replicates = values.replicates === undefined ? undefined : parseWholeNumber(values.replicates, '--replicates', 1);
   const seed = values.seed === undefined ? undefined : /^-?\d+$/.test(values.seed) ? Number(values.seed) : values.seed;
   const data = readCsvFile(positionals[0], csvOptions(values));
   const model = parseModel(readJsonFile(values.model, '--model'));

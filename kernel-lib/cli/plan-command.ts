@@ -2,6 +2,7 @@ import { writeFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
 import { planCurveSpecs, planReportHtml } from '../display/plan-report';
 import { QuadratInputError } from '../model/errors';
+import { parseWholeNumber } from '../model/option-checks';
 import { runPlan } from '../study/plan-run';
 import { planCaseFolder, planCurvePath, reportPath } from '../study/folder-layout';
 import { planFromPilot } from '../study/plan-pilot';
@@ -28,10 +29,7 @@ export async function planCommand(argv: string[], print: (s: string) => void): P
   });
   if (positionals.length !== 1) throw new QuadratInputError(`study plan: expected one design file; usage: ${PLAN_USAGE}`, { field: 'design' });
   if (!values.out) throw new QuadratInputError('study plan: --out <folder> is required', { field: '--out' });
-  const workers = values.workers === undefined ? undefined : Number(values.workers);
-  if (workers !== undefined && !(Number.isInteger(workers) && workers >= 1)) {
-    throw new QuadratInputError(`--workers: expected a whole number ≥ 1, got "${values.workers}"`, { field: '--workers' });
-  }
+  const workers = values.workers === undefined ? undefined : parseWholeNumber(values.workers, '--workers', 1);
   const design = readJsonFile(positionals[0], 'design');
   if (values.survey !== undefined) return pilotPlan(design, values as PilotArgs, workers, print);
   const controller = new AbortController();

@@ -1,16 +1,7 @@
 /** Covariates of the survey design: distributions, the unit they vary by, their share between levels of a factor. */
 import { describeValue, listNames } from '../model/errors';
-import {
-  expectArray,
-  expectLabel,
-  expectName,
-  expectNonNegative,
-  expectNumber,
-  expectObject,
-  fail,
-  keyPath,
-  rejectUnknownKeys,
-} from './checks';
+import { expectArray, expectNonNegative, expectNumber, expectObject, fail, rejectUnknownKeys } from '../model/option-checks';
+import { expectLabel, expectName, keyPath } from './checks';
 import { isNestedWithin } from './factors';
 import type { BetweenSpec, ResolvedCovariate, ResolvedFactor } from './types';
 

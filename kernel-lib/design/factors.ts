@@ -1,7 +1,8 @@
 /** Survey factors: parsing, nesting and level labels. */
 import { listNames } from '../model/errors';
 import { checkFactorLevels } from './size-limits';
-import { expectArray, expectInteger, expectName, expectObject, fail, rejectUnknownKeys } from './checks';
+import { expectArray, expectInteger, expectObject, fail, rejectUnknownKeys } from '../model/option-checks';
+import { expectName } from './checks';
 import type { ResolvedFactor } from './types';
 
 const FACTOR_KEYS = ['name', 'levels', 'within'];

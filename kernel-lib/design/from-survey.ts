@@ -1,7 +1,7 @@
 import { describeSurvey, type SurveySummary } from '../data/describe-survey';
 import { toColumns, type Columns } from '../data/columns';
 import { isMissing } from '../data/missing';
-import { fitModel, type SurveyData } from '../analyse/fit-model';
+import { fitResolvedModel, type SurveyData } from '../analyse/fit-model';
 import type { FitResult } from '../fit/result';
 import { parseModel } from '../model/parse';
 import { involvesLevelOf, termColumns } from '../model/terms';
@@ -67,7 +67,7 @@ export function designFromSurvey(data: SurveyData, model: ModelSpec | ResolvedMo
   const nesting: Record<string, string> = {};
   for (const g of resolved.groups) if (g.within) nesting[g.factor] = g.within;
   const summary = describeSurvey(columns, groupNames, resolved.response, nesting);
-  const fit = fitModel(columns, resolved);
+  const fit = fitResolvedModel(columns, resolved);
   const notes: string[] = [];
 
   const factors: FactorSpec[] = resolved.groups.map((g) => {

@@ -4,7 +4,7 @@
  * covariates, variants) a segment is an element's `name`; inside a plain array, an index.
  */
 import { describeValue, listNames } from '../model/errors';
-import { fail, isPlainObject } from './checks';
+import { fail, isPlainObject } from '../model/option-checks';
 
 export interface GridTarget {
   /** The object or array holding the value. */

@@ -8,7 +8,8 @@
 import { describeValue, listNames } from '../model/errors';
 import { INTERCEPT } from '../model/terms';
 import { createStream } from '../random/stream';
-import { expectArray, expectInteger, expectName, expectNonNegative, expectNumber, expectObject, fail, keyPath, rejectUnknownKeys } from './checks';
+import { checkChoice, expectArray, expectInRange, expectInteger, expectNonNegative, expectObject, fail, parseJsonText, rejectUnknownKeys } from '../model/option-checks';
+import { expectName, keyPath } from './checks';
 import { columnCatalog, type ColumnCatalog } from './columns';
 import { addTrialsColumn, checkVariantResponseColumns, parseDesignOffset, parseDesignTrials } from './response-columns';
 import { parseCovariates } from './covariates';
@@ -26,14 +27,7 @@ const DESIGN_KEYS = ['seed', 'replicates', 'factors', 'perCell', 'missing', 'res
 const DESIGN_DEFAULTS = { perCell: 1, missing: 0, response: 'y', family: 'gaussian' };
 
 export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
-  let raw = input;
-  if (typeof input === 'string') {
-    try {
-      raw = JSON.parse(input);
-    } catch (e) {
-      fail(`${path}: not valid JSON (${(e as Error).message})`, path);
-    }
-  }
+  const raw = typeof input === 'string' ? parseJsonText(input, path) : input;
   const obj = expectObject(raw, path);
   rejectUnknownKeys(obj, DESIGN_KEYS, path);
   const warnings: string[] = [];
@@ -42,7 +36,7 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
   const replicates = expectInteger(obj.replicates, `${path}.replicates`, 1);
   const factors = parseFactors(obj.factors, `${path}.factors`);
   const perCell = obj.perCell === undefined ? DESIGN_DEFAULTS.perCell : expectInteger(obj.perCell, `${path}.perCell`, 1);
-  const missing = obj.missing === undefined ? DESIGN_DEFAULTS.missing : parseProbability(obj.missing, `${path}.missing`);
+  const missing = obj.missing === undefined ? DESIGN_DEFAULTS.missing : expectInRange(obj.missing, `${path}.missing`, 0, 1, 'a probability');
 
   const response = obj.response === undefined ? DESIGN_DEFAULTS.response : expectName(obj.response, `${path}.response`);
   if (response === INTERCEPT) fail(`${path}.response: "${INTERCEPT}" is reserved for the model intercept`, `${path}.response`);
@@ -51,11 +45,8 @@ export function parseDesign(input: unknown, path = 'design'): SurveyDesign {
     if (f.name === INTERCEPT) fail(`${path}.factors[${i}].name: "${INTERCEPT}" is reserved`, `${path}.factors[${i}].name`);
   });
 
-  const familyName = obj.family === undefined ? DESIGN_DEFAULTS.family : obj.family;
-  const family = responseFamily(familyName);
-  if (family === undefined) {
-    fail(`${path}.family: expected one of ${listNames(Object.keys(RESPONSE_FAMILIES))}, got ${describeValue(familyName)}`, `${path}.family`);
-  }
+  const familyName = obj.family === undefined ? DESIGN_DEFAULTS.family : checkChoice(obj.family, Object.keys(RESPONSE_FAMILIES), `${path}.family`);
+  const family = responseFamily(familyName)!;
 
   const trialsSpec = parseDesignTrials(obj.trials, `${path}.trials`, family.name);
 
@@ -112,12 +103,6 @@ function parseSeed(value: unknown, path: string): number | string {
   if (typeof value === 'string' && value !== '') return value;
   if (typeof value === 'number' && Number.isFinite(value)) return value;
   return fail(`${path}: expected a number or a non-empty text (required), got ${describeValue(value)}`, path);
-}
-
-function parseProbability(value: unknown, path: string): number {
-  const p = expectNumber(value, path);
-  if (p < 0 || p >= 1) fail(`${path}: expected a probability in [0, 1), got ${p}`, path);
-  return p;
 }
 
 /** Sizes per level of the factor; from `cv`, drawn once from the design seed (see UnequalSpec). */

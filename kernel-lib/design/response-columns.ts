@@ -6,7 +6,8 @@
  */
 import { describeValue, listNames } from '../model/errors';
 import type { ResolvedModel } from '../model/types';
-import { expectInteger, expectName, expectObject, fail, isPlainObject, rejectUnknownKeys } from './checks';
+import { expectInteger, expectObject, fail, isPlainObject, rejectUnknownKeys } from '../model/option-checks';
+import { expectName } from './checks';
 import type { ColumnCatalog } from './columns';
 import type { SurveyDesign } from './types';
 

@@ -2,7 +2,7 @@
  * Sizes a simulated survey may have, checked before anything is allocated: a typo such as
  * `"levels": 1e9` is refused with the memory it would need instead of exhausting it.
  */
-import { fail } from './checks';
+import { fail } from '../model/option-checks';
 
 /** Levels of one factor (nested levels counted through their outer factors). */
 const MAX_LEVELS = 1_000_000;

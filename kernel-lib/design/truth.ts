@@ -1,7 +1,8 @@
 /** The data-generating truth: fixed coefficients, random-effect SDs, slopes and correlations. */
 import { listNames } from '../model/errors';
 import { bracketFormToCurrent, INTERACTION_SEPARATOR, INTERCEPT, levelName, splitLevelName } from '../model/terms';
-import { expectNonNegative, expectNumber, expectObject, fail, keyPath, rejectUnknownKeys } from './checks';
+import { expectNonNegative, expectNumber, expectObject, fail, rejectUnknownKeys } from '../model/option-checks';
+import { keyPath } from './checks';
 import type { ColumnCatalog } from './columns';
 import type { ResponseFamily } from '../family/index';
 import type { RandomTruth, ResolvedFactor, ResolvedTruth, TruthPart, TruthTerm } from './types';

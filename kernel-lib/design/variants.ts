@@ -7,7 +7,7 @@ import { describeValue, listNames } from '../model/errors';
 import { parseModel } from '../model/parse';
 import { INTERACTION_SEPARATOR, INTERCEPT, NESTING_SEPARATOR, groupMeanName, levelName, productName, termColumns } from '../model/terms';
 import type { FixedTerm, GroupSpec, ResolvedModel } from '../model/types';
-import { expectArray, expectObject, fail, rejectUnknownKeys } from './checks';
+import { expectArray, expectObject, fail, rejectUnknownKeys } from '../model/option-checks';
 import { allColumns, type ColumnCatalog } from './columns';
 import type { Layout } from './layout';
 import type { ResolvedFactor, ResolvedTruth, ResolvedVariant } from './types';

@@ -6,7 +6,7 @@ import type { DesignMatrices } from '../data/design-matrices';
 import type { FamilyName } from '../family/index';
 import type { FitResult } from './result';
 import type { BootstrapSettings } from './inference/intervals';
-import type { IntervalMethod } from './interval-methods';
+import { checkInterval, type IntervalMethod } from '../model/interval-rule';
 import { estimabilityOrder } from './aliasing';
 import { checkFitOptions } from './check-fit-options';
 import { ESTIMATE_STEPS } from './estimate/index';
@@ -14,7 +14,7 @@ import { responseScale, scaledResponse, unscaleFit } from './response-scale';
 import { summarise } from './summarise';
 import { QuadratInputError } from '../model/errors';
 
-export { INTERVAL_METHODS, type IntervalMethod } from './interval-methods';
+export { INTERVAL_METHODS, type IntervalMethod } from '../model/interval-rule';
 
 export interface FitOptions {
   /** Response family. Default 'gaussian'. */
@@ -60,9 +60,11 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
     const scale = responseScale(design.y);
     if (scale !== 1) return unscaleFit(fitDesign(scaledResponse(design, scale), options), scale);
   }
+  const estimation = options.estimation ?? 'REML';
+  const interval = checkInterval(options.interval ?? 'wald', { family, estimation, random: design.random.length > 0 }, 'options.interval', 'options.estimation');
   const fitted = options.fitted ?? true;
   const estimate = step(design, {
-    estimation: options.estimation ?? 'REML',
+    estimation,
     priority: estimabilityOrder(design.roles),
     start: options.start,
     modes: options.modes ?? true,
@@ -70,5 +72,5 @@ export function fitDesign(design: DesignMatrices, options: FitOptions = {}): Fit
     integration: options.integration,
     nodes: options.nodes,
   });
-  return summarise(design, estimate, { level: options.level ?? 0.95, interval: options.interval ?? 'wald', bootstrap: options.bootstrap, fitted });
+  return summarise(design, estimate, { level: options.level ?? 0.95, interval, bootstrap: options.bootstrap, fitted });
 }

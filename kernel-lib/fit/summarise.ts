@@ -6,11 +6,10 @@
 import type { DesignMatrices } from '../data/design-matrices';
 import type { CorrelationRow, FitResult, FixedEffectRow, VarianceComponentRow } from './result';
 import type { Estimate } from './estimate/types';
-import type { IntervalMethod } from './interval-methods';
+import type { IntervalMethod } from '../model/interval-rule';
 import { SMALL_SAMPLE_METHODS, type BootstrapSettings, type SmallSampleMethod } from './inference/intervals';
 import { applyDfFloor } from './df-floor';
 import { normalQuantile, studentTQuantile } from '../numeric/distributions';
-import { QuadratInputError } from '../model/errors';
 
 export interface SummariseOptions {
   level: number;
@@ -56,7 +55,8 @@ export function summarise(design: DesignMatrices, est: Estimate, options: Summar
   let varianceIntervals: { lower: number; upper: number }[] | undefined;
   if ((SMALL_SAMPLE_METHODS as readonly string[]).includes(method)) {
     if (!est.smallSample) {
-      throw new QuadratInputError(`model.interval: "${method}" is not available for this fit; use "wald" or "residual-t"`, { field: 'model.interval' });
+      // fitDesign checked the method against model/interval-rule: a step that the rule allows to use it must provide it
+      throw new Error(`the estimate step gives no "${method}" intervals, which model/interval-rule.ts allows for this fit`);
     }
     const outcome = est.smallSample(method as SmallSampleMethod, level, options.bootstrap);
     est.estimable.forEach((j, a) => Object.assign(fixed[j], outcome.fixed[a]));

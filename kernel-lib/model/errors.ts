@@ -28,10 +28,13 @@ export class QuadratInputError extends Error {
   }
 }
 
-/** Quote a value for an error message: strings in double quotes, everything else as JSON-ish text. */
-export function describeValue(value: unknown): string {
-  if (typeof value === 'string') return JSON.stringify(value);
-  if (value === undefined) return 'undefined';
+/**
+ * Quote a value for an error message: strings in double quotes (or single quotes, as the plot
+ * builders write field names and values), everything else as JSON-ish text.
+ */
+export function describeValue(value: unknown, quote: '"' | "'" = '"'): string {
+  if (typeof value === 'string') return quote === '"' ? JSON.stringify(value) : `'${value}'`;
+  if (value === undefined) return 'undefined (missing)';
   if (typeof value === 'number' || typeof value === 'boolean' || value === null) return String(value);
   if (typeof value === 'bigint') return `${value}n`;
   if (Array.isArray(value)) return 'an array';

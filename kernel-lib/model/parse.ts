@@ -15,12 +15,13 @@
  * - `reference` and `correlated` are kept whatever `as` is, so switching a factor between
  *   fixed and random stays a one-field change; each role uses what applies to it.
  * - `reference` may be given as a number in JSON; it is stored as text, as levels are.
- * - The interval method is any non-empty text; the fitting engine checks that it knows it.
+ * - The interval method must suit the family and estimation (./interval-rule, the one place of that rule).
  * - `intercept: false` needs at least one fixed term.
  * - `split` names fixed main-effect terms (numeric columns, checked when the design is built).
  */
-import { checkChoice, checkLevel } from './option-checks';
-import { QuadratInputError, describeValue, listNames } from './errors';
+import { checkChoice, checkLevel, expectArray, expectBoolean, expectObject, expectText, fail, isPlainObject, parseJsonText, rejectUnknownKeys } from './option-checks';
+import { describeValue } from './errors';
+import { checkInterval } from './interval-rule';
 import { INTERACTION_SEPARATOR, termColumns, termLabel } from './terms';
 import { parseResponseFields, responseFieldsToJson } from './response-fields';
 import type {
@@ -53,10 +54,10 @@ const MODEL_DEFAULTS = {
 /** Validate `input` (a model object or its JSON text) and return it with every default filled in. */
 export function parseModel(input: unknown, path = 'model'): ResolvedModel {
   const raw = typeof input === 'string' ? parseJsonText(input, path) : input;
-  const obj = expectPlainObject(raw, path);
+  const obj = expectObject(raw, path);
   rejectUnknownKeys(obj, MODEL_KEYS, path);
 
-  const response = expectName(obj.response, `${path}.response`, true);
+  const response = expectColumn(obj.response, `${path}.response`);
   const categorical = parseNameList(obj.categorical, `${path}.categorical`);
   for (let i = 0; i < categorical.length; i++) {
     if (categorical[i] === response) {
@@ -67,6 +68,12 @@ export function parseModel(input: unknown, path = 'model'): ResolvedModel {
   const groups = parseGroups(obj.groups, `${path}.groups`, response, fixed, `${path}.fixed`);
   const intercept = parseIntercept(obj.intercept, `${path}.intercept`, fixed.length);
   const { estimation: familyEstimation, interval: familyInterval, ...responseFields } = parseResponseFields(obj, path, response, groups);
+  const estimation = familyEstimation ?? parseChoice(obj.estimation, ESTIMATIONS, MODEL_DEFAULTS.estimation, `${path}.estimation`);
+  const interval = checkInterval(
+    obj.interval ?? familyInterval ?? MODEL_DEFAULTS.interval,
+    { family: responseFields.family, estimation, random: groups.some((g) => g.as === 'random') },
+    `${path}.interval`, `${path}.estimation`,
+  );
 
   return {
     response,
@@ -74,10 +81,10 @@ export function parseModel(input: unknown, path = 'model'): ResolvedModel {
     fixed,
     intercept,
     groups,
-    estimation: familyEstimation ?? parseChoice(obj.estimation, ESTIMATIONS, MODEL_DEFAULTS.estimation, `${path}.estimation`),
+    estimation,
     categorical,
     missing: parseChoice(obj.missing, MISSING_POLICIES, MODEL_DEFAULTS.missing, `${path}.missing`),
-    interval: familyInterval ?? (obj.interval === undefined ? MODEL_DEFAULTS.interval : expectName(obj.interval, `${path}.interval`, false)),
+    interval,
     level: parseLevel(obj.level, `${path}.level`),
   };
 }
@@ -157,7 +164,7 @@ function parseFixedTerm(value: unknown, path: string): FixedTerm {
   }
   if (isPlainObject(value)) {
     rejectUnknownKeys(value, CATEGORICAL_TERM_KEYS, path);
-    const column = expectName(value.column, `${path}.column`, true);
+    const column = expectColumn(value.column, `${path}.column`);
     if (column.includes(INTERACTION_SEPARATOR)) {
       fail(`${path}.column: expected one column name (interactions are written as a string "a:b"), got ${describeValue(column)}`, `${path}.column`);
     }
@@ -222,16 +229,16 @@ function parseGroups(value: unknown, path: string, response: string, fixed: Fixe
 }
 
 function parseGroup(value: unknown, path: string, response: string): GroupSpec {
-  const obj = expectPlainObject(value, path);
+  const obj = expectObject(value, path);
   rejectUnknownKeys(obj, GROUP_KEYS, path);
-  const factor = expectName(obj.factor, `${path}.factor`, true);
+  const factor = expectColumn(obj.factor, `${path}.factor`);
   if (factor === response) fail(`${path}.factor: the response "${response}" cannot be a grouping factor`, `${path}.factor`);
   if (obj.as === undefined) fail(`${path}.as: expected "random" or "fixed" (required)`, `${path}.as`);
   const as = parseChoice(obj.as, ROLES, 'random', `${path}.as`);
   const group: GroupSpec = { factor, as };
 
   if (obj.within !== undefined) {
-    const within = expectName(obj.within, `${path}.within`, true);
+    const within = expectColumn(obj.within, `${path}.within`);
     if (within === factor) fail(`${path}.within: "${factor}" cannot be nested within itself`, `${path}.within`);
     if (within === response) fail(`${path}.within: cannot nest within the response "${response}"`, `${path}.within`);
     group.within = within;
@@ -250,10 +257,7 @@ function parseGroup(value: unknown, path: string, response: string): GroupSpec {
   if (split.length > 0) group.split = split;
 
   if (obj.correlated !== undefined) {
-    if (typeof obj.correlated !== 'boolean') {
-      fail(`${path}.correlated: expected true or false, got ${describeValue(obj.correlated)}`, `${path}.correlated`);
-    }
-    group.correlated = obj.correlated;
+    group.correlated = expectBoolean(obj.correlated, `${path}.correlated`);
   } else if (slopes.length > 0) {
     group.correlated = true;
   }
@@ -264,9 +268,9 @@ function parseGroup(value: unknown, path: string, response: string): GroupSpec {
 /** Without an intercept the fixed part needs a term of its own (a model of pure noise around 0 is not offered). */
 function parseIntercept(value: unknown, path: string, fixedTerms: number): boolean {
   if (value === undefined) return true;
-  if (typeof value !== 'boolean') return fail(`${path}: expected true or false, got ${describeValue(value)}`, path);
-  if (!value && fixedTerms === 0) fail(`${path}: a model without an intercept needs at least one fixed term`, path);
-  return value;
+  const intercept = expectBoolean(value, path);
+  if (!intercept && fixedTerms === 0) fail(`${path}: a model without an intercept needs at least one fixed term`, path);
+  return intercept;
 }
 
 function parseLevel(value: unknown, path: string): number {
@@ -280,52 +284,16 @@ function parseReference(value: unknown, path: string): string {
 }
 
 // ---------------------------------------------------------------------------------------------
-// Generic checks
+// Field shapes of this parser (the checks themselves: ./option-checks)
 
-function parseJsonText(text: string, path: string): unknown {
-  try {
-    return JSON.parse(text);
-  } catch (e) {
-    return fail(`${path}: not valid JSON (${(e as Error).message})`, path);
-  }
-}
-
-function isPlainObject(value: unknown): value is Record<string, unknown> {
-  return typeof value === 'object' && value !== null && !Array.isArray(value);
-}
-
-function expectPlainObject(value: unknown, path: string): Record<string, unknown> {
-  if (!isPlainObject(value)) return fail(`${path}: expected an object, got ${describeValue(value)}`, path);
-  return value;
-}
-
-function expectArray(value: unknown, path: string): unknown[] {
-  if (!Array.isArray(value)) return fail(`${path}: expected an array, got ${describeValue(value)}`, path);
-  return value;
-}
-
-function rejectUnknownKeys(obj: Record<string, unknown>, allowed: readonly string[], path: string): void {
-  for (const key of Object.keys(obj)) {
-    if (!allowed.includes(key)) {
-      fail(`${path}: unknown key "${key}"; allowed keys: ${listNames(allowed)}`, `${path}.${key}`);
-    }
-  }
-}
-
-/** A non-empty string. `isColumn` adds the wording "column name" to the message. */
-function expectName(value: unknown, path: string, isColumn: boolean): string {
-  const what = isColumn ? 'a column name' : 'a non-empty text';
-  if (value === undefined) return fail(`${path}: expected ${what} (required)`, path);
-  if (typeof value !== 'string' || value === '') return fail(`${path}: expected ${what}, got ${describeValue(value)}`, path);
-  return value;
-}
+const expectColumn = (value: unknown, path: string): string => expectText(value, path, 'a column name');
 
 function parseNameList(value: unknown, path: string): string[] {
   if (value === undefined) return [];
   const list = expectArray(value, path);
   const seen = new Map<string, number>();
   return list.map((item, i) => {
-    const name = expectName(item, `${path}[${i}]`, true);
+    const name = expectColumn(item, `${path}[${i}]`);
     const earlier = seen.get(name);
     if (earlier !== undefined) fail(`${path}[${i}]: duplicate "${name}" (same as ${path}[${earlier}])`, `${path}[${i}]`);
     seen.set(name, i);
@@ -335,8 +303,4 @@ function parseNameList(value: unknown, path: string): string[] {
 
 function parseChoice<T extends string>(value: unknown, choices: readonly T[], fallback: T, path: string): T {
   return value === undefined ? fallback : checkChoice(value, choices, path);
-}
-
-function fail(message: string, field: string): never {
-  throw new QuadratInputError(message, { field });
 }

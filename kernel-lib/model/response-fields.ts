@@ -3,7 +3,8 @@
  * mixed model's likelihood is integrated. Checked here so every error names its field; the
  * numbers behind each family live in family/ and fit/estimate/.
  */
-import { QuadratInputError, describeValue } from './errors';
+import { describeValue } from './errors';
+import { checkChoice, expectInteger, fail } from './option-checks';
 import type { GroupSpec, Integration, ResponseFamilyName } from './types';
 
 const RESPONSE_FAMILY_NAMES: readonly ResponseFamilyName[] = ['gaussian', 'poisson', 'binomial', 'negative-binomial'];
@@ -12,7 +13,6 @@ const INTEGRATIONS: readonly Integration[] = ['laplace', 'quadrature'];
 const DEFAULT_NODES = 9;
 const MAX_NODES = 50;
 /** Interval methods of the count and detection families: Wald z (default), profile likelihood, parametric bootstrap. */
-const COUNT_INTERVALS = ['wald', 'profile', 'bootstrap'] as const;
 
 export interface ResponseFields {
   family: ResponseFamilyName;
@@ -22,23 +22,15 @@ export interface ResponseFields {
   nodes?: number;
 }
 
-function fail(message: string, field: string): never {
-  throw new QuadratInputError(message, { field });
-}
-
 /**
- * Parse the response fields of a model object. `estimation` and `interval` are the raw values
- * given (undefined when left to the default), because their defaults depend on the family:
- * a non-normal family is fitted by ML with Wald z intervals unless profile or bootstrap is asked for.
+ * Parse the response fields of a model object. `estimation` and `interval` are the defaults of a
+ * non-normal family (fitted by ML with Wald z intervals), undefined for the normal one; which
+ * interval methods a family allows is ./interval-rule.
  */
 export function parseResponseFields(
   obj: Record<string, unknown>, path: string, response: string, groups: GroupSpec[],
 ): ResponseFields & { estimation?: 'ML'; interval?: string } {
-  const family = obj.family === undefined ? 'gaussian' : obj.family;
-  if (typeof family !== 'string' || !(RESPONSE_FAMILY_NAMES as readonly string[]).includes(family)) {
-    fail(`${path}.family: expected one of ${RESPONSE_FAMILY_NAMES.map((f) => `"${f}"`).join(', ')}, got ${describeValue(obj.family)}`, `${path}.family`);
-  }
-  const name = family as ResponseFamilyName;
+  const name = obj.family === undefined ? 'gaussian' : checkChoice(obj.family, RESPONSE_FAMILY_NAMES, `${path}.family`);
   const out: ResponseFields & { estimation?: 'ML'; interval?: string } = { family: name };
   if (name === 'gaussian') {
     for (const key of ['trials', 'offset', 'integration', 'nodes']) {
@@ -52,10 +44,7 @@ export function parseResponseFields(
     fail(`${path}.estimation: the "${name}" family is fitted by maximum likelihood; REML is defined for normal responses only: use "ML" or leave it out`, `${path}.estimation`);
   }
   out.estimation = 'ML';
-  if (obj.interval !== undefined && !(COUNT_INTERVALS as readonly unknown[]).includes(obj.interval)) {
-    fail(`${path}.interval: the "${name}" family has ${COUNT_INTERVALS.map((m) => `"${m}"`).join(', ')} intervals; ${describeValue(obj.interval)} is available for normal responses only`, `${path}.interval`);
-  }
-  out.interval = (obj.interval as string | undefined) ?? 'wald';
+  out.interval = 'wald';
   if (obj.trials !== undefined) {
     if (name !== 'binomial') fail(`${path}.trials: only used with the "binomial" family`, `${path}.trials`);
     const t = obj.trials;
@@ -71,21 +60,14 @@ export function parseResponseFields(
     if (obj.offset === response) fail(`${path}.offset: the response "${response}" cannot be the offset`, `${path}.offset`);
     out.offset = obj.offset as string;
   }
-  const integration = obj.integration === undefined ? 'laplace' : obj.integration;
-  if (typeof integration !== 'string' || !(INTEGRATIONS as readonly string[]).includes(integration)) {
-    fail(`${path}.integration: expected "laplace" or "quadrature", got ${describeValue(obj.integration)}`, `${path}.integration`);
-  }
-  out.integration = integration as Integration;
+  const integration = obj.integration === undefined ? 'laplace' : checkChoice(obj.integration, INTEGRATIONS, `${path}.integration`);
+  out.integration = integration;
   if (integration === 'quadrature') {
     const random = groups.filter((g) => g.as === 'random');
     if (random.length !== 1 || (random[0].slopes?.length ?? 0) > 0) {
       fail(`${path}.integration: "quadrature" needs exactly one random grouping factor with a random intercept only (this model has ${random.length === 1 ? 'random slopes' : `${random.length} random factors`}); use "laplace"`, `${path}.integration`);
     }
-    const nodes = obj.nodes === undefined ? DEFAULT_NODES : obj.nodes;
-    if (typeof nodes !== 'number' || !Number.isInteger(nodes) || nodes < 1 || nodes > MAX_NODES) {
-      fail(`${path}.nodes: expected a whole number from 1 to ${MAX_NODES}, got ${describeValue(obj.nodes)}`, `${path}.nodes`);
-    }
-    out.nodes = nodes as number;
+    out.nodes = obj.nodes === undefined ? DEFAULT_NODES : expectInteger(obj.nodes, `${path}.nodes`, 1, MAX_NODES);
   } else if (obj.nodes !== undefined) {
     fail(`${path}.nodes: only used with "integration": "quadrature"`, `${path}.nodes`);
   }

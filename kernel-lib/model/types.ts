@@ -4,6 +4,8 @@
  * The same shape is accepted as JSON (see parseModel in ./parse).
  */
 
+import type { IntervalMethod } from './interval-rule';
+
 /** How a grouping factor enters the model. */
 export type GroupRole = 'random' | 'fixed';
 
@@ -110,6 +112,7 @@ export interface ResolvedModel {
   estimation: Estimation;
   categorical: string[];
   missing: MissingPolicy;
-  interval: string;
+  /** Checked against the family and estimation (./interval-rule). */
+  interval: IntervalMethod;
   level: number;
 }

@@ -1,18 +1,27 @@
-/** Input checks and small data helpers shared by the plot builders. Errors name the builder, option, row and field. */
+/**
+ * Input checks and small data helpers shared by the plot builders. Errors are QuadratInputError
+ * naming the builder, option, row and field; option checks are those of model/option-checks.
+ */
+import { QuadratInputError, describeValue as describeInput } from '../model/errors';
+import { expectArray, expectObject, expectPositive, expectText } from '../model/option-checks';
 import { VARIANT_COLOURS, VARIANT_SHAPES } from './theme';
 import type { FieldTitles } from './types';
 
+/** A value for a message, quoted as the plot builders quote field names ('site'). */
+export const describeValue = (value: unknown): string => describeInput(value, "'");
+
 export function fail(builder: string, message: string): never {
-  throw new Error(`${builder}: ${message}`);
+  throw new QuadratInputError(`${builder}: ${message}`);
 }
 
-export function describeValue(value: unknown): string {
-  if (typeof value === 'string') return `'${value}'`;
-  if (typeof value === 'number') return String(value);
-  if (value === undefined) return 'undefined (missing)';
-  if (value === null) return 'null';
-  if (Array.isArray(value)) return 'an array';
-  return typeof value;
+/** Run a shared check, its message prefixed with the builder's name (the field path stays the error's field). */
+function inBuilder<T>(builder: string, check: () => T): T {
+  try {
+    return check();
+  } catch (e) {
+    if (e instanceof QuadratInputError) throw new QuadratInputError(`${builder}: ${e.message}`, { field: e.field });
+    throw e;
+  }
 }
 
 export function quoteList(values: readonly (string | number)[]): string {
@@ -20,21 +29,17 @@ export function quoteList(values: readonly (string | number)[]): string {
 }
 
 export function checkArray(value: unknown, name: string, builder: string): asserts value is readonly unknown[] {
-  if (!Array.isArray(value)) fail(builder, `${name} must be an array, got ${describeValue(value)}`);
+  inBuilder(builder, () => expectArray(value, name));
 }
 
 export function checkOptionsObject(options: unknown, builder: string): void {
-  if (options === null || typeof options !== 'object' || Array.isArray(options)) {
-    fail(builder, `options must be an object, got ${describeValue(options)}`);
-  }
+  inBuilder(builder, () => expectObject(options, 'options'));
 }
 
 /** A required or optional option naming a data field: a non-empty string. */
 export function checkFieldOption(value: unknown, option: string, builder: string, required: boolean): void {
   if (value === undefined && !required) return;
-  if (typeof value !== 'string' || value === '') {
-    fail(builder, `options.${option} must be a non-empty field name, got ${describeValue(value)}`);
-  }
+  inBuilder(builder, () => expectText(value, `options.${option}`, 'a non-empty field name'));
 }
 
 export function checkRowObject(row: unknown, index: number, builder: string): asserts row is Record<string, unknown> {
@@ -69,16 +74,12 @@ export function jsonNumber(value: number): number | null {
 }
 
 export function positiveOption(value: unknown, option: string, builder: string, fallback: number): number {
-  if (value === undefined) return fallback;
-  if (typeof value !== 'number' || !(value > 0) || !Number.isFinite(value)) {
-    fail(builder, `options.${option} must be a positive finite number, got ${describeValue(value)}`);
-  }
-  return value;
+  return value === undefined ? fallback : inBuilder(builder, () => expectPositive(value, `options.${option}`));
 }
 
 export function stringOption(value: unknown, option: string, builder: string): string | undefined {
   if (value === undefined) return undefined;
-  if (typeof value !== 'string') fail(builder, `options.${option} must be a string, got ${describeValue(value)}`);
+  if (typeof value !== 'string') fail(builder, `options.${option}: expected a text, got ${describeValue(value)}`);
   return value;
 }
 
@@ -158,10 +159,8 @@ export function fieldTitle(field: string, titles: FieldTitles | undefined): stri
 
 export function checkFieldTitles(value: unknown, builder: string): FieldTitles | undefined {
   if (value === undefined) return undefined;
-  if (value === null || typeof value !== 'object' || Array.isArray(value)) {
-    fail(builder, `options.fieldTitles must be an object mapping field names to titles, got ${describeValue(value)}`);
-  }
-  for (const [k, v] of Object.entries(value)) {
+  inBuilder(builder, () => expectObject(value, 'options.fieldTitles'));
+  for (const [k, v] of Object.entries(value as FieldTitles)) {
     if (typeof v !== 'string') fail(builder, `options.fieldTitles['${k}'] must be a string, got ${describeValue(v)}`);
   }
   return value as FieldTitles;

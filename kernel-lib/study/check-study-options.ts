@@ -4,7 +4,7 @@
  */
 import { availableParallelism } from 'node:os';
 import { QuadratInputError, describeValue } from '../model/errors';
-import { checkShard, checkWholeNumber } from '../model/option-checks';
+import { checkShard, expectInteger } from '../model/option-checks';
 
 export interface StudyOptionsChecked {
   /** Worker threads to start: the request capped at the cores available. */
@@ -23,8 +23,8 @@ export function checkStudyOptions(options: Record<string, unknown>, cores = avai
   if (typeof options.out !== 'string' || options.out.trim() === '') {
     throw new QuadratInputError(`options.out: expected the path of the study folder, got ${describeValue(options.out)}`, { field: 'options.out' });
   }
-  if (options.replicates !== undefined) checkWholeNumber(options.replicates, 'options.replicates', 1);
-  if (options.batchSize !== undefined) checkWholeNumber(options.batchSize, 'options.batchSize', 1, MAX_BATCH_SIZE);
+  if (options.replicates !== undefined) expectInteger(options.replicates, 'options.replicates', 1);
+  if (options.batchSize !== undefined) expectInteger(options.batchSize, 'options.batchSize', 1, MAX_BATCH_SIZE);
   if (options.shard !== undefined) checkShard(options.shard, 'options.shard');
   for (const key of ['onProgress'] as const) {
     if (options[key] !== undefined && typeof options[key] !== 'function') {
@@ -34,7 +34,7 @@ export function checkStudyOptions(options: Record<string, unknown>, cores = avai
   const warnings: string[] = [];
   let workers = cores;
   if (options.workers !== undefined) {
-    workers = checkWholeNumber(options.workers, 'options.workers', 1);
+    workers = expectInteger(options.workers, 'options.workers', 1);
     if (workers > cores) {
       warnings.push(`${workers} workers requested but ${cores} cores are available: using ${cores}`);
       workers = cores;

@@ -7,7 +7,7 @@
 import { planCaseFolder } from './folder-layout';
 import { toColumns, type Columns } from '../data/columns';
 import { designFromSurvey, type DesignFromSurveyOptions } from '../design/from-survey';
-import { fitModel, type SurveyData } from '../analyse/fit-model';
+import { fitResolvedModel, type SurveyData } from '../analyse/fit-model';
 import { QuadratInputError } from '../model/errors';
 import { parseModel } from '../model/parse';
 import type { ModelSpec } from '../model/types';
@@ -57,7 +57,7 @@ export async function planFromPilot(data: SurveyData, model: ModelSpec, plan: Re
   }
   const derived = designFromSurvey(data, model, options);
   // profile-likelihood interval of the SD (fit/inference/profile), at 95%
-  const profiled = fitModel(toColumns(data as Columns), { ...model, interval: 'profile', level: 0.95 });
+  const profiled = fitResolvedModel(toColumns(data as Columns), { ...resolved, interval: 'profile', level: 0.95 });
   const row = profiled.random.find((r) => r.factor === options.sdOf && r.term === 'intercept');
   const estimate = derived.design.truth.sd[options.sdOf];
   const lower = row?.lower;

@@ -4,7 +4,7 @@
  * threshold). Errors are QuadratInputError naming the field (`plan.goals[1].metric`).
  */
 import { describeValue, listNames } from '../model/errors';
-import { expectArray, expectInteger, expectNumber, expectObject, fail, isPlainObject, rejectUnknownKeys } from '../design/checks';
+import { expectArray, expectInteger, expectNumber, expectObject, fail, isPlainObject, rejectUnknownKeys } from '../model/option-checks';
 import { expandGrid } from '../design/grid';
 import { resolveGridPath } from '../design/grid-path';
 import { parseDesign } from '../design/parse';

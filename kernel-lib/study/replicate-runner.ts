@@ -3,7 +3,6 @@ import { fillDesign, planDesign, type DesignPlan } from '../data/design-plan';
 import type { Columns } from '../data/columns';
 import type { DesignMatrices } from '../data/design-matrices';
 import { fitDesign, type IntervalMethod } from '../fit/fit-design';
-import { checkInterval } from '../fit/check-fit-options';
 import type { FitResult } from '../fit/result';
 import { expandGrid, type Scenario } from '../design/grid';
 import { TargetProjector } from '../design/realised-truth';
@@ -31,7 +30,7 @@ export class ReplicateRunner {
   private readonly workspaces = new Map<number, ReturnType<typeof createWorkspace>>();
   private readonly streams = new Map<number, ReplicateStreams>();
 
-  /** Interval method of each variant, checked once: an unknown method is refused before anything runs. */
+  /** Interval method of each variant (checked with its family and estimation by parseModel, before anything runs). */
   private readonly intervals = new Map<string, IntervalMethod>();
 
   /** Target projector per variant of each scenario, built on first use. */
@@ -44,7 +43,7 @@ export class ReplicateRunner {
   private readonly plans = new Map<ResolvedVariant, DesignPlan | number>();
 
   constructor(readonly design: SurveyDesign) {
-    design.variants.forEach((v, i) => this.intervals.set(v.name, checkInterval(v.model.interval, `design.variants[${i}].model.interval`)));
+    design.variants.forEach((v) => this.intervals.set(v.name, v.model.interval));
     this.scenarios = expandGrid(design);
   }
 

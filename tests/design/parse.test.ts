@@ -84,7 +84,7 @@ describe('levelLabels', () => {
 describe('parseDesign: messages name the field', () => {
   it('rejects an unknown key and lists the allowed ones', () => {
     const e = inputError(() => parseDesign({ ...example(), seeds: 1 }));
-    expect(e.message).toMatch(/^design: unknown key "seeds"; allowed keys: seed, replicates, factors/);
+    expect(e.message).toMatch(/^design: unknown key "seeds" \(did you mean "seed"\?\); allowed keys: seed, replicates, factors/);
     expect(e.field).toBe('design.seeds');
   });
 
@@ -182,7 +182,7 @@ describe('parseDesign: messages name the field', () => {
   });
 
   it('refuses an unknown family', () => {
-    expect(inputError(() => parseDesign({ ...example(), family: 'gamma' })).message).toMatch(/^design\.family: expected one of gaussian/);
+    expect(inputError(() => parseDesign({ ...example(), family: 'gamma' })).message).toMatch(/^design\.family: expected one of "gaussian", "poisson"/);
   });
 
   it('refuses category probabilities that do not sum to 1', () => {

@@ -7,7 +7,7 @@ import { readCsvFile } from '../../kernel-lib/data/csv';
 import { buildDesign } from '../../kernel-lib/data/build-design';
 import { parseModel } from '../../kernel-lib/model/parse';
 import { fitModel } from '../../kernel-lib/analyse/fit-model';
-import { checkInterval } from '../../kernel-lib/fit/check-fit-options';
+import { checkInterval } from '../../kernel-lib/model/interval-rule';
 import { fitDesign, INTERVAL_METHODS } from '../../kernel-lib/fit/fit-design';
 import { termTest, termCoefficients } from '../../kernel-lib/fit/inference/contrast-test';
 import { KR_MAX_DIMENSION } from '../../kernel-lib/fit/inference/kenward-roger';
@@ -36,7 +36,7 @@ describe('interval methods through the model description', () => {
 
   it('names every method when one is unknown, and refuses Kenward-Roger with ML naming the field', () => {
     expect(INTERVAL_METHODS).toEqual(['wald', 'residual-t', 'satterthwaite', 'kenward-roger', 'profile', 'bootstrap']);
-    expect(() => checkInterval('bogus')).toThrow(/model\.interval: interval method "bogus" is not available; expected one of: wald, residual-t, satterthwaite, kenward-roger, profile, bootstrap/);
+    expect(() => checkInterval('bogus', { family: 'gaussian', estimation: 'REML', random: true })).toThrow(/model\.interval: interval method "bogus" is not available; expected one of: wald, residual-t, satterthwaite, kenward-roger, profile, bootstrap/);
     const data = readCsvFile(CSV);
     const model = { ...JSON.parse(readFileSync(MODEL_YEAR_FIXED, 'utf8')), estimation: 'ML', interval: 'kenward-roger' };
     let error: unknown;
@@ -44,7 +44,7 @@ describe('interval methods through the model description', () => {
     expect(error).toBeInstanceOf(QuadratInputError);
     expect((error as QuadratInputError).message).toMatch(/model\.interval: "kenward-roger" is defined for REML fits only, but model\.estimation is "ML"/);
     // the same refusal from the engine entry point
-    const design = buildDesign(data, parseModel(model));
+    const design = buildDesign(data, parseModel({ ...model, interval: 'satterthwaite' }));
     expect(() => fitDesign(design, { estimation: 'ML', interval: 'kenward-roger' })).toThrow(/REML fits only/);
   });
 

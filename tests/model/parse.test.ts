@@ -147,7 +147,7 @@ describe('parseModel: errors name the field', () => {
   it('lists allowed keys for an unknown key', () => {
     const top = inputError(() => parseModel({ ...base, fixd: ['x'] }));
     expect(top.message).toBe(
-      'model: unknown key "fixd"; allowed keys: response, fixed, intercept, groups, estimation, categorical, missing, interval, level, family, trials, offset, integration, nodes',
+      'model: unknown key "fixd" (did you mean "fixed"?); allowed keys: response, fixed, intercept, groups, estimation, categorical, missing, interval, level, family, trials, offset, integration, nodes',
     );
     const group = inputError(() => parseModel({ ...base, groups: [{ factor: 's', as: 'random', nested: 'x' }] }));
     expect(group.message).toBe(
@@ -272,13 +272,13 @@ describe('parseModel: errors name the field', () => {
       );
     }
     expect(inputError(() => parseModel({ ...base, estimation: 'reml' })).message).toBe(
-      'model.estimation: expected "REML" or "ML", got "reml"',
+      'model.estimation: expected "REML" or "ML", got "reml" (did you mean "REML"?)',
     );
     expect(inputError(() => parseModel({ ...base, missing: 'keep' })).message).toBe(
       'model.missing: expected "drop" or "reject", got "keep"',
     );
     expect(inputError(() => parseModel({ ...base, interval: '' })).message).toBe(
-      'model.interval: expected a non-empty text, got ""',
+      'model.interval: interval method "" is not available; expected one of: wald, residual-t, satterthwaite, kenward-roger, profile, bootstrap',
     );
   });
 

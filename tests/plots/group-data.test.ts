@@ -88,7 +88,7 @@ describe('groupData errors', () => {
 
   it('requires the response option', () => {
     expect(() => groupData(ROWS, { group: 'site' } as never)).toThrow(
-      /options\.response must be a non-empty field name, got undefined \(missing\)/,
+      /^groupData: options\.response: expected a non-empty field name \(required\)$/,
     );
   });
 });

@@ -6,6 +6,7 @@
 import type { DesignMatrices } from '../../data/design-matrices';
 import type { FitResult } from '../result';
 import { QuadratInputError } from '../../model/errors';
+import { checkLevel, expectInteger } from '../../model/option-checks';
 import { contextFromFit } from './context';
 import { BOOTSTRAP_DEFAULTS, modelBootstrapWidth, summariseBootstrap, type BootstrapSummary } from './bootstrap';
 import { countBootstrapModel, countContextFromFit } from './count-intervals';
@@ -23,12 +24,8 @@ export interface BootstrapFitOptions extends BootstrapSettings {
 export async function bootstrapFit(
   design: DesignMatrices, fit: FitResult, options: BootstrapFitOptions = {},
 ): Promise<{ fit: FitResult; summary: BootstrapSummary }> {
-  const level = options.level ?? 0.95;
-  const resamples = options.resamples ?? BOOTSTRAP_DEFAULTS.resamples;
-  if (!(Number.isInteger(resamples) && resamples >= 1)) {
-    throw new QuadratInputError(`bootstrap.resamples: expected a whole number ≥ 1, got ${resamples}`, { field: 'bootstrap.resamples' });
-  }
-  if (!(level > 0 && level < 1)) throw new QuadratInputError(`bootstrap.level: expected a number strictly between 0 and 1, got ${level}`, { field: 'bootstrap.level' });
+  const level = checkLevel(options.level ?? 0.95, 'bootstrap.level');
+  const resamples = expectInteger(options.resamples ?? BOOTSTRAP_DEFAULTS.resamples, 'bootstrap.resamples', 1);
   if (fit.failure) throw new QuadratInputError(`fit: the fit produced no estimates (${fit.failure}); nothing to resample`, { field: 'fit' });
   const seed = options.seed ?? BOOTSTRAP_DEFAULTS.seed;
   let model;

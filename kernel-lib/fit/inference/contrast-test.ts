@@ -6,6 +6,7 @@
 import type { DesignMatrices } from '../../data/design-matrices';
 import type { FitResult } from '../result';
 import { QuadratInputError } from '../../model/errors';
+import { checkInterval } from '../../model/interval-rule';
 import { isLevelOf, splitLevelName } from '../../model/terms';
 import { fSurvival } from '../../numeric/distributions';
 import { symmetricEigen } from '../../numeric/symmetric-eigen';
@@ -176,9 +177,8 @@ export function contrastTest(design: DesignMatrices, fit: FitResult, rows: numbe
       if (v !== 0 && fit.fixed[j]?.aliased) throw new QuadratInputError(`contrast row ${i}: coefficient ${design.fixedNames[j]} is aliased (not estimable); give it weight 0`, { field: `contrast[${i}]` });
     });
   });
-  if (method === 'kenward-roger' && fit.estimation === 'ML') {
-    throw new QuadratInputError('method "kenward-roger" needs a REML fit (model.estimation is "ML"); refit with estimation "REML" or use "satterthwaite"', { field: 'model.estimation' });
-  }
+  // the tests' df are those of the interval methods of the same name: the same rule applies
+  checkInterval(method, { family: 'gaussian', estimation: fit.estimation, random: design.random.length > 0 }, 'method');
   const ctx = contextFromFit(design, fit);
   const l = new Float64Array(rows.length * ctx.design.p);
   rows.forEach((r, i) => ctx.columns.forEach((col, a) => { l[i * ctx.design.p + a] = r[col]; }));

@@ -7,7 +7,8 @@ import type { DesignMatrices } from '../../data/design-matrices';
 import type { FitResult } from '../result';
 import type { CountEstimate, CountFitOptions } from '../estimate/count-model';
 import { restrictColumns } from '../aliasing';
-import { QuadratInputError } from '../../model/errors';
+import { checkInterval } from '../../model/interval-rule';
+import { expectInteger } from '../../model/option-checks';
 import { countProfileFixed, countProfileSds, type CountContext } from './count-profile';
 import { BOOTSTRAP_DEFAULTS, runBootstrapInThread, summariseBootstrap, type BootstrapModel } from './bootstrap';
 import { countBootstrapWidth } from './count-bootstrap';
@@ -48,15 +49,10 @@ export function countContextFromFit(full: DesignMatrices, fit: FitResult): Count
   return countContext(full, options, estimate);
 }
 
-/** Apply 'profile' or 'bootstrap' to a count fit; other methods are refused naming model.interval. */
+/** Apply 'profile' or 'bootstrap' to a count fit; other methods are refused by the interval rule, naming model.interval. */
 export function countIntervals(ctx: CountContext, method: SmallSampleMethod, level: number, bootstrap: BootstrapSettings = {}): IntervalOutcome {
   const family = ctx.options.family;
-  if (method !== 'profile' && method !== 'bootstrap') {
-    throw new QuadratInputError(
-      `model.interval: "${method}" is a small-sample t method for normal responses; the "${family}" family has "wald", "profile" or "bootstrap"`,
-      { field: 'model.interval' },
-    );
-  }
+  checkInterval(method, { family, estimation: 'ML', random: true });
   const warnings: string[] = [];
   const p = ctx.design.p;
   const se = (j: number) => Math.sqrt(ctx.estimate.cov[j * p + j]);
@@ -71,10 +67,7 @@ export function countIntervals(ctx: CountContext, method: SmallSampleMethod, lev
     });
     return { fixed, variance, warnings };
   }
-  const resamples = bootstrap.resamples ?? BOOTSTRAP_DEFAULTS.resamples;
-  if (!(Number.isInteger(resamples) && resamples >= 1)) {
-    throw new QuadratInputError(`bootstrap.resamples: expected a whole number ≥ 1, got ${resamples}`, { field: 'bootstrap.resamples' });
-  }
+  const resamples = expectInteger(bootstrap.resamples ?? BOOTSTRAP_DEFAULTS.resamples, 'bootstrap.resamples', 1);
   const model = countBootstrapModel(ctx, bootstrap.seed ?? BOOTSTRAP_DEFAULTS.seed);
   const samples = runBootstrapInThread(model, resamples, bootstrap.onProgress);
   const summary = summariseBootstrap(samples, countBootstrapWidth(ctx.design), level);

@@ -4,6 +4,8 @@
  * for every variance component (design term order, then the residual SD).
  */
 import { QuadratInputError } from '../../model/errors';
+import { INTERVAL_METHODS, type IntervalMethod } from '../../model/interval-rule';
+import { expectInteger } from '../../model/option-checks';
 import { studentTQuantile } from '../../numeric/distributions';
 import { withResidualResponse, type InferenceContext } from './context';
 import { satterthwaiteCore, satterthwaiteDf } from './satterthwaite';
@@ -11,8 +13,9 @@ import { kenwardRogerCore, kenwardRogerDf, kenwardRogerSizeProblem } from './ken
 import { profileFixedEffects, profileVariance, varianceTargets } from './profile';
 import { BOOTSTRAP_DEFAULTS, bootstrapWidth, runBootstrapInThread, summariseBootstrap } from './bootstrap';
 
-export const SMALL_SAMPLE_METHODS = ['satterthwaite', 'kenward-roger', 'profile', 'bootstrap'] as const;
-export type SmallSampleMethod = (typeof SMALL_SAMPLE_METHODS)[number];
+/** The methods computed here: every interval method but Wald and residual-t. */
+export type SmallSampleMethod = Exclude<IntervalMethod, 'wald' | 'residual-t'>;
+export const SMALL_SAMPLE_METHODS: readonly SmallSampleMethod[] = INTERVAL_METHODS.filter((m): m is SmallSampleMethod => m !== 'wald' && m !== 'residual-t');
 
 export interface BootstrapSettings {
   /** Number of resamples. Default 999. */
@@ -40,15 +43,9 @@ export interface IntervalOutcome {
   warnings: string[];
 }
 
-/** Why a method cannot be used for this fit ('' when it can): Kenward-Roger needs REML and a moderate size. */
+/** Why a method cannot be computed for this fit ('' when it can): Kenward-Roger's dense matrices need a moderate size (which method goes with which fit is model/interval-rule). */
 function methodProblem(method: SmallSampleMethod, ctx: InferenceContext): string {
-  if (method === 'kenward-roger') {
-    if (ctx.estimation === 'ML') {
-      return 'model.interval: "kenward-roger" is defined for REML fits only, but model.estimation is "ML"; use estimation "REML" or interval "satterthwaite"';
-    }
-    return kenwardRogerSizeProblem(ctx.dev);
-  }
-  return '';
+  return method === 'kenward-roger' ? kenwardRogerSizeProblem(ctx.dev) : '';
 }
 
 function tInterval(estimate: number, se: number, df: number, level: number): FixedInterval {
@@ -106,10 +103,7 @@ export function smallSampleIntervals(
     });
     return { fixed, variance, warnings };
   }
-  const resamples = bootstrap.resamples ?? BOOTSTRAP_DEFAULTS.resamples;
-  if (!(Number.isInteger(resamples) && resamples >= 1)) {
-    throw new QuadratInputError(`bootstrap.resamples: expected a whole number ≥ 1, got ${resamples}`, { field: 'bootstrap.resamples' });
-  }
+  const resamples = expectInteger(bootstrap.resamples ?? BOOTSTRAP_DEFAULTS.resamples, 'bootstrap.resamples', 1);
   const model = bootstrapModel(ctx, bootstrap.seed ?? BOOTSTRAP_DEFAULTS.seed);
   const samples = runBootstrapInThread(model, resamples, bootstrap.onProgress);
   const summary = summariseBootstrap(samples, bootstrapWidth(model.design), level);

@@ -26,8 +26,25 @@ function helpRequest(name: string, rest: string[]): string | undefined {
   return helpText(sub ? `${name} ${sub}` : name);
 }
 
+let quietPipe = false;
+
+/**
+ * A reader that stops early (`quadrat fit … | head -3`) closes our stdout: the next write fails
+ * with EPIPE. As other command-line tools do, stop quietly with exit code 0 instead of a stack trace
+ * (results already written to files, such as a study's batches, are kept: each is written whole).
+ */
+function stopQuietlyWhenOutputCloses(): void {
+  if (quietPipe) return;
+  quietPipe = true;
+  process.stdout.on('error', (e: NodeJS.ErrnoException) => {
+    if (e.code === 'EPIPE') process.exit(0);
+    throw e;
+  });
+}
+
 /** Run the command line; returns the exit code. Bad input: one line on stderr, exit code 2. */
 export async function main(argv: string[]): Promise<number> {
+  stopQuietlyWhenOutputCloses();
   const [name, ...rest] = argv;
   const print = (s: string) => process.stdout.write(s.endsWith('\n') ? s : `${s}\n`);
   if (name === '--version' || name === '-V' || name === 'version') {

@@ -1,5 +1,5 @@
 import { describe, expect, it, vi } from 'vitest';
-import { spawnSync } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -108,5 +108,21 @@ describe('quadrat design from-survey', () => {
     const bad = quadrat('design', 'from-survey', SURVEY);
     expect(bad.status).toBe(2);
     expect(bad.stderr).toMatch(/--model <model\.json> is required/);
+  });
+});
+
+describe('quadrat with its output piped into a reader that stops early', () => {
+  it('a closed stdout (EPIPE, as with "| head -3") ends quietly with exit code 0', async () => {
+    // common practice, no source: command-line tools stop silently when their reader goes away
+    const child = spawn(process.execPath, [BIN, 'fit', '--json', '--data', 'data/demo-survey.csv', '--model', 'data/demo-model.json'], {
+      cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'],
+    });
+    // close the reading end before the fit prints anything, as a reader that has had enough does
+    child.stdout.destroy();
+    let stderr = '';
+    child.stderr.on('data', (d: Buffer) => { stderr += d.toString(); });
+    const code = await new Promise<number | null>((resolve) => child.on('close', (c) => resolve(c)));
+    expect(stderr).toBe('');
+    expect(code).toBe(0);
   });
 });

@@ -1,10 +1,14 @@
 /**
  * Why a fixed-effect column cannot be estimated, in words: an empty cell of an interaction (the
  * column is zero in every row used), or the estimable columns it is a linear combination of.
+ * Which columns belong to which factor comes from the column roles (data/design-matrices), never
+ * from the coefficient names, which serve only as labels in the message.
  */
 import { choleskyInPlace, forwardSolveInPlace, backSolveTransposeInPlace } from '../numeric/dense';
 import { listNames } from '../model/errors';
 import type { DesignMatrices } from '../data/design-matrices';
+
+type AliasDesign = Pick<DesignMatrices, 'n' | 'p' | 'X' | 'fixedNames' | 'roles'>;
 
 /** Coefficients below this (on the unit-norm column scale) do not count as part of the combination. */
 const PART_TOLERANCE = 1e-6;
@@ -14,7 +18,7 @@ const PART_TOLERANCE = 1e-6;
  * `estimable`/`aliased` are column indices as from aliasingFromCrossProducts.
  */
 export function aliasReasons(
-  design: Pick<DesignMatrices, 'n' | 'p' | 'X' | 'fixedNames'>, xtx: Float64Array, stride: number,
+  design: AliasDesign, xtx: Float64Array, stride: number,
   estimable: readonly number[], aliased: readonly number[],
 ): Record<string, string> {
   const names = design.fixedNames;
@@ -30,7 +34,7 @@ export function aliasReasons(
   const factored = m > 0 && choleskyInPlace(l, m) === -1;
   for (const j of aliased) {
     const name = names[j];
-    const cell = emptyCell(design, name);
+    const cell = emptyCell(design, j);
     if (cell) {
       out[name] = cell;
       continue;
@@ -53,22 +57,21 @@ export function aliasReasons(
   return out;
 }
 
-/** Factor name of a level column, "habitat[wet]" or "habitat=wet" -> "habitat" (null for other columns). */
-function factorOf(column: string): { factor: string; level: string } | null {
-  const m = /^([^:[=]+)(?:\[(.*)\]|=(.*))$/.exec(column);
-  return m ? { factor: m[1], level: m[2] ?? m[3] } : null;
-}
-
 /**
- * For an interaction of two categorical terms whose main effects are in X: the first combination
- * of their levels that no row has, in words ('' when every cell is observed or the column is of
- * another kind).
+ * For column j, an interaction of two factors whose main effects (level columns) are in X: the
+ * first combination of their levels that no row has, in words ('' when every cell is observed or
+ * the column is of another kind, e.g. a covariate times a factor).
  */
-function emptyCell(design: Pick<DesignMatrices, 'n' | 'p' | 'X' | 'fixedNames'>, name: string): string {
-  const parts = name.split(':').map(factorOf);
-  if (parts.length !== 2 || !parts[0] || !parts[1]) return '';
-  const { n, p, X, fixedNames } = design;
-  const mains = parts.map((part) => fixedNames.map((c, j) => ({ j, f: factorOf(c) })).filter((x) => x.f && x.f.factor === part!.factor && !fixedNames[x.j].includes(':')));
+function emptyCell(design: AliasDesign, j: number): string {
+  const { n, p, X, fixedNames, roles } = design;
+  const role = roles[j];
+  if (role.kind !== 'interaction' || role.sources.length !== 2) return '';
+  const factors = role.sources;
+  const mains = factors.map((factor) => {
+    const cols: { j: number }[] = [];
+    roles.forEach((r, c) => { if (r.kind === 'factor-level' && r.sources.length === 1 && r.sources[0] === factor) cols.push({ j: c }); });
+    return cols;
+  });
   if (mains.some((m) => m.length === 0)) return '';
   const levelOf = (i: number, cols: typeof mains[0]) => {
     for (let k = 0; k < cols.length; k++) if (X[i * p + cols[k].j] !== 0) return k + 1;
@@ -80,8 +83,8 @@ function emptyCell(design: Pick<DesignMatrices, 'n' | 'p' | 'X' | 'fixedNames'>,
   const empty = seen.indexOf(0);
   if (empty < 0) return '';
   const label = (cols: typeof mains[0], k: number, factor: string) => (k === 0 ? `the reference level of ${factor}` : fixedNames[cols[k - 1].j]);
-  const a = label(mains[0], Math.floor(empty / width), parts[0].factor);
-  const b = label(mains[1], empty % width, parts[1].factor);
-  return `no row used has ${a} together with ${b} (an empty cell of the interaction ${parts[0].factor}:${parts[1].factor}); ` +
-    `the intercept and the coefficients of ${parts[0].factor} and ${parts[1].factor} then describe the observed cells only (compare with a model without the interaction)`;
+  const a = label(mains[0], Math.floor(empty / width), factors[0]);
+  const b = label(mains[1], empty % width, factors[1]);
+  return `no row used has ${a} together with ${b} (an empty cell of the interaction ${factors[0]}:${factors[1]}); ` +
+    `the intercept and the coefficients of ${factors[0]} and ${factors[1]} then describe the observed cells only (compare with a model without the interaction)`;
 }

@@ -28,7 +28,8 @@ describe('QuadratInputError', () => {
 describe('describeValue', () => {
   it('quotes strings as JSON and names other kinds', () => {
     expect(describeValue('wet "bog"')).toBe('"wet \\"bog\\""');
-    expect(describeValue(undefined)).toBe('undefined');
+    expect(describeValue(undefined)).toBe('undefined (missing)');
+    expect(describeValue('wet', "'")).toBe("'wet'"); // the plot builders' quoting
     expect(describeValue(null)).toBe('null');
     expect(describeValue(NaN)).toBe('NaN');
     expect(describeValue(-2.5)).toBe('-2.5');

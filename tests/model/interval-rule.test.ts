@@ -11,7 +11,7 @@ import { inputError } from '../helpers/input-error';
 const mixed = { family: 'gaussian', estimation: 'REML', random: true };
 
 // Which method goes with which fit: Kenward-Roger is defined for REML (Kenward and Roger 1997,
-// Biometrics 53(3), §2); a non-normal family is fitted by ML with Wald z intervals (project rule).
+// Biometrics 53(3), §2); a non-normal family is fitted by ML, where the t methods' df do not apply (project rule).
 describe('interval rule', () => {
   it('every method with a normal REML mixed model; Kenward-Roger refused with ML unless the model has no random term', () => {
     for (const m of INTERVAL_METHODS) expect(intervalProblem(m, mixed)).toBe('');
@@ -22,9 +22,9 @@ describe('interval rule', () => {
     expect(intervalProblem('satterthwaite', { ...mixed, estimation: 'ML' })).toBe('');
   });
 
-  it('count and detection families: Wald only', () => {
+  it('count and detection families: Wald, profile and bootstrap, no small-sample t methods', () => {
     for (const family of ['poisson', 'binomial', 'negative-binomial']) {
-      for (const m of INTERVAL_METHODS) expect(intervalProblem(m, { family, estimation: 'ML', random: true }) === '').toBe(m === 'wald');
+      for (const m of INTERVAL_METHODS) expect(intervalProblem(m, { family, estimation: 'ML', random: true }) === '').toBe(['wald', 'profile', 'bootstrap'].includes(m));
     }
   });
 
@@ -40,8 +40,8 @@ describe('interval rule', () => {
     const model = { response: 'y', fixed: ['x'], groups: [{ factor: 'g', as: 'random' }], estimation: 'ML', interval: 'kenward-roger' };
     expect(inputError(() => parseModel(model)).field).toBe('model.interval');
     expect(inputError(() => parseModel({ ...model, estimation: 'REML', family: 'poisson' })).message).toMatch(/^model\.estimation: the "poisson" family is fitted by maximum likelihood/);
-    expect(inputError(() => parseModel({ response: 'n', family: 'poisson', interval: 'profile' })).message).toBe(
-      'model.interval: the "poisson" family has Wald z intervals ("wald"); "profile" is available for normal responses only',
+    expect(inputError(() => parseModel({ response: 'n', family: 'poisson', interval: 'satterthwaite' })).message).toBe(
+      'model.interval: the "poisson" family has "wald", "profile", "bootstrap" intervals; "satterthwaite" is a small-sample t method for normal responses only',
     );
     const design = {
       seed: 1, replicates: 2, factors: [{ name: 'g', levels: 4 }], perCell: 3,

@@ -358,6 +358,7 @@ describe.skipIf(!serverWorks || !chromiumWorks)('a template notebook in the clas
         const pictures = await other.locator('.quadrat-chart > img[src^="data:image/svg+xml;base64,"]').count();
         expect(pictures, 'each chart shows its picture in the untrusted copy').toBe(second.charts.flat().length);
         expect(untrusted.charts.flat().every((svg) => svg === ''), 'no live chart in the untrusted copy').toBe(true);
+        await other.locator('.quadrat-chart').first().screenshot({ path: path.join(ARTIFACTS, 'notebook-browser-untrusted-chart.png') });
         await other.close();
         lap('untrusted copy');
         expect(pageErrors).toEqual([]);

@@ -109,8 +109,6 @@ export interface CountEstimate {
 /** What a count fit keeps per design object: everything that does not depend on the response. */
 interface CountWorkspace {
   family: CountFamily;
-  trials: Float64Array | undefined;
-  offsetSource: Float64Array | undefined;
   priority: number[] | undefined;
   n: number;
   /** The design's revision the workspace was built or refreshed for. */
@@ -167,10 +165,10 @@ function acquireWorkspace(full: DesignMatrices, options: CountFitOptions): Count
   const family = options.family;
   const revision = revisionOf(full);
   if (
-    kept && !kept.inUse && kept.family === family && kept.trials === options.trials && kept.offsetSource === options.offset &&
-    kept.n === full.n && samePriority(kept.priority, options.priority)
+    kept && !kept.inUse && kept.family === family && kept.n === full.n && samePriority(kept.priority, options.priority)
   ) {
     if (kept.revision === revision) {
+      loadOffsetAndTrials(kept, options);
       kept.inUse = true;
       return kept;
     }
@@ -185,7 +183,7 @@ function acquireWorkspace(full: DesignMatrices, options: CountFitOptions): Count
         kept.xtx = xtx;
         kept.alias = alias;
         kept.revision = revision;
-        if (options.trials) kept.response.trials.set(options.trials);
+        loadOffsetAndTrials(kept, options);
         if (kept.quad) kept.quad.setGroups(full.random[0]);
         kept.layout = null;
         kept.inUse = true;
@@ -198,20 +196,29 @@ function acquireWorkspace(full: DesignMatrices, options: CountFitOptions): Count
   crossProduct(full, xtx);
   const alias = aliasingFromCrossProducts(xtx, full.p, full.p, options.priority);
   const design = restrictColumns(full, alias.estimable);
-  const offset = options.offset ?? new Float64Array(n);
-  const response = new GlmResponse(family, n, options.trials);
+  const offset = new Float64Array(n);
+  const response = new GlmResponse(family, n);
   const oneIntercept = design.random.length === 1 && design.random[0].terms.length === 1;
   const ws: CountWorkspace = {
-    family, trials: options.trials, offsetSource: options.offset, priority: options.priority ? options.priority.slice() : undefined, n, revision,
+    family, priority: options.priority ? options.priority.slice() : undefined, n, revision,
     xtx, alias, design, offset, response, glm: new GlmIrls(design.X, design.p, offset, response),
     quad: oneIntercept ? new OneInterceptQuadrature(design.X, design.p, offset, response, design.random[0]) : null,
     eta: new Float64Array(n), score: new Float64Array(n), weight: new Float64Array(n),
     levelScore: new Float64Array(oneIntercept ? design.random[0].levels.length : 0),
     levelWeight: new Float64Array(oneIntercept ? design.random[0].levels.length : 0), layout: null, inUse: true,
   };
+  loadOffsetAndTrials(ws, options);
   // a busy workspace (a fit inside a fit of the same design) stays kept; the new one is used once
   if (!kept || !kept.inUse) workspaces.set(full, ws);
   return ws;
+}
+
+/** The fit's offset (0 when absent) and binomial trials (1 when absent) into the workspace's own arrays. */
+function loadOffsetAndTrials(ws: CountWorkspace, options: CountFitOptions): void {
+  if (options.offset) ws.offset.set(options.offset);
+  else ws.offset.fill(0);
+  if (options.trials) ws.response.trials.set(options.trials);
+  else ws.response.trials.fill(1);
 }
 
 /** Fit a count or detection model to design matrices. Never throws for numerical trouble. */

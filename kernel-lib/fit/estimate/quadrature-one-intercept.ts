@@ -50,6 +50,11 @@ export class OneInterceptQuadrature {
   private readonly dH: Float64Array;
   private readonly gPsi: Float64Array;
   private readonly acc: Float64Array;
+  /** dû_j/dψ per group (m × (1 + p)) at the point psiAt, valid after a gradient evaluation. */
+  private readonly modeSlopes: Float64Array;
+  private readonly psiAt: Float64Array;
+  private readonly psiMove: Float64Array;
+  private slopesValid = false;
 
   constructor(readonly X: Float64Array, p: number, readonly offset: Float64Array, readonly response: GlmResponse, term: RandomTerm) {
     this.n = response.n;
@@ -82,6 +87,9 @@ export class OneInterceptQuadrature {
     this.dH = new Float64Array(p + 1);
     this.gPsi = new Float64Array(p + 1);
     this.acc = new Float64Array(p + 1);
+    this.modeSlopes = new Float64Array(m * (p + 1));
+    this.psiAt = new Float64Array(p + 1);
+    this.psiMove = new Float64Array(p + 1);
   }
 
   /**
@@ -90,6 +98,7 @@ export class OneInterceptQuadrature {
    */
   setGroups(term: RandomTerm): void {
     const { n, m, groupStart, groupRows, z } = this;
+    this.slopesValid = false;
     this.index = term.index;
     groupStart.fill(0);
     for (let i = 0; i < n; i++) groupStart[term.index[i] + 1]++;
@@ -218,6 +227,7 @@ export class OneInterceptQuadrature {
   /** Forget the warm starts (e.g. a new response). */
   reset(): void {
     this.modes.fill(0);
+    this.slopesValid = false;
   }
 
   /**
@@ -236,10 +246,21 @@ export class OneInterceptQuadrature {
     }
     const rule = nodes > 1 ? gaussHermite(nodes) : null;
     if (grad) grad.fill(0);
-    const { dU, dH, gPsi, acc } = this;
+    const { dU, dH, gPsi, acc, modeSlopes, psiAt, psiMove } = this;
+    // warm start: the last modes moved to first order by their stored derivatives dû/dψ
+    const predict = this.slopesValid;
+    if (predict) {
+      psiMove[0] = theta - psiAt[0];
+      for (let a = 0; a < p; a++) psiMove[1 + a] = beta[a] - psiAt[1 + a];
+    }
     let total = 0;
     for (let j = 0; j < m; j++) {
       let u = this.modes[j];
+      if (predict) {
+        let move = 0;
+        for (let c = 0; c <= p; c++) move += modeSlopes[j * (p + 1) + c] * psiMove[c];
+        if (Number.isFinite(move)) u += move;
+      }
       this.at(j, theta, u, k);
       for (let it = 0; it < 100; it++) {
         const step = this.grad / this.hess;
@@ -255,11 +276,17 @@ export class OneInterceptQuadrature {
         }
         u = un;
       }
-      if (!Number.isFinite(this.g)) return Infinity;
+      if (!Number.isFinite(this.g)) {
+        this.slopesValid = false;
+        return Infinity;
+      }
       this.modes[j] = u;
       const hess = this.hess;
       this.curvature[j] = hess;
-      if (grad) this.modeDerivatives(j, theta, u, k, hess);
+      if (grad) {
+        this.modeDerivatives(j, theta, u, k, hess);
+        for (let c = 0; c <= p; c++) modeSlopes[j * (p + 1) + c] = dU[c];
+      }
       if (!rule) {
         total += this.g - 0.5 * Math.log(hess);
         if (grad) for (let c = 0; c <= p; c++) grad[c] -= 2 * (gPsi[c] - (0.5 * dH[c]) / hess);
@@ -286,7 +313,25 @@ export class OneInterceptQuadrature {
       total += gMode + Math.log(sum) + Math.log(scale) - 0.5 * LOG_2PI;
       if (grad) for (let c = 0; c <= p; c++) grad[c] -= 2 * (acc[c] / sum - (0.5 * dH[c]) / hess);
     }
+    this.recordPoint(theta, beta, grad !== null);
     return -2 * (total + this.response.constant(k));
+  }
+
+  /**
+   * Where the modes now are. Slopes computed with a gradient belong to this point; an evaluation
+   * without one keeps them only at the same (θ, β) (another k, e.g. a difference in k).
+   */
+  private recordPoint(theta: number, beta: ArrayLike<number>, withSlopes: boolean): void {
+    const { psiAt, p } = this;
+    if (!withSlopes) {
+      let same = this.slopesValid && psiAt[0] === theta;
+      for (let a = 0; a < p && same; a++) same = psiAt[1 + a] === beta[a];
+      this.slopesValid = same;
+      return;
+    }
+    psiAt[0] = theta;
+    for (let a = 0; a < p; a++) psiAt[1 + a] = beta[a];
+    this.slopesValid = true;
   }
 
   /**

@@ -103,23 +103,90 @@ export interface SummariseOptions {
  * changes between rows, and on duplicated replicates.
  */
 export function summarise(rows: readonly ReplicateRow[], options: SummariseOptions = {}): MetricRow[] {
-  const { level, alpha } = resolveLevels(options);
-  const groups = groupRows(rows);
-  const out: MetricRow[] = [];
-  for (const group of groups) {
-    const start = out.length;
-    appendShareMetrics(out, group);
-    const own = options.levels?.[group.scenario]?.[group.variant];
-    if (own !== undefined && !(own > 0 && own < 1)) {
-      throw new Error(`summarise: options.levels for scenario '${group.scenario}', variant '${group.variant}' must lie strictly between 0 and 1, got ${own}`);
-    }
-    const scaleNote = options.otherScale?.[group.scenario]?.[group.variant];
-    if (scaleNote !== undefined) for (let i = start; i < out.length; i++) out[i].note = joinNotes(scaleNote, out[i].note);
-    for (const p of group.parameterOrder) {
-      appendParameterMetrics(out, p, own ?? level, own === undefined ? alpha : 1 - own, scaleNote);
+  resolveLevels(options);
+  if (!Array.isArray(rows)) throw new Error('summarise: rows must be an array of replicate rows');
+  const builder = new MetricsBuilder();
+  builder.add(rows);
+  return builder.result(options);
+}
+
+/**
+ * The metrics of summarise, built from rows given in pieces (a study streams its batches in, in
+ * study order): one pass, nothing kept per row, and the same result as summarise over all rows.
+ */
+export class MetricsBuilder {
+  private readonly byScenario = new Map<string, Map<string, FitStatusAccumulator>>();
+  private readonly order: FitStatusAccumulator[] = [];
+  private lastGroup: FitStatusAccumulator | undefined;
+  private lastParam: ParameterAccumulator | undefined;
+  /** Rows added so far (row numbers in messages count from the first row of the first piece). */
+  private count = 0;
+
+  add(rows: readonly ReplicateRow[]): void {
+    for (let k = 0; k < rows.length; k++) {
+      const row = rows[k];
+      const i = this.count++;
+      checkReplicateRow(row, i);
+      let group = this.lastGroup;
+      if (group === undefined || group.scenario !== row.scenario || group.variant !== row.variant) {
+        let byVariant = this.byScenario.get(row.scenario);
+        if (byVariant === undefined) {
+          byVariant = new Map();
+          this.byScenario.set(row.scenario, byVariant);
+        }
+        group = byVariant.get(row.variant);
+        if (group === undefined) {
+          group = new FitStatusAccumulator(row.scenario, row.variant);
+          byVariant.set(row.variant, group);
+          this.order.push(group);
+        }
+        this.lastGroup = group;
+        this.lastParam = undefined;
+      }
+      let param = this.lastParam;
+      if (param === undefined || param.parameter !== row.parameter) {
+        param = group.parameters.get(row.parameter);
+        if (param === undefined) {
+          param = new ParameterAccumulator(row.scenario, row.variant, row.parameter, row.kind, row.truth, i);
+          group.parameters.set(row.parameter, param);
+          group.parameterOrder.push(param);
+        }
+        this.lastParam = param;
+      }
+      group.add(row.replicate, row.status, row.reason);
+      param.add(row, i);
     }
   }
-  return out;
+
+  /** The metric rows of everything added (see summarise). */
+  result(options: SummariseOptions = {}): MetricRow[] {
+    const { level, alpha } = resolveLevels(options);
+    for (const group of this.order) {
+      for (const p of group.parameterOrder) {
+        if (p.rows > group.replicates) {
+          throw new Error(
+            `summarise: ${p.describe()} has ${p.rows} rows but the scenario and variant have only ` +
+              `${group.replicates} distinct replicates; expected at most one row per replicate and parameter`,
+          );
+        }
+      }
+    }
+    const out: MetricRow[] = [];
+    for (const group of this.order) {
+      const start = out.length;
+      appendShareMetrics(out, group);
+      const own = options.levels?.[group.scenario]?.[group.variant];
+      if (own !== undefined && !(own > 0 && own < 1)) {
+        throw new Error(`summarise: options.levels for scenario '${group.scenario}', variant '${group.variant}' must lie strictly between 0 and 1, got ${own}`);
+      }
+      const scaleNote = options.otherScale?.[group.scenario]?.[group.variant];
+      if (scaleNote !== undefined) for (let i = start; i < out.length; i++) out[i].note = joinNotes(scaleNote, out[i].note);
+      for (const p of group.parameterOrder) {
+        appendParameterMetrics(out, p, own ?? level, own === undefined ? alpha : 1 - own, scaleNote);
+      }
+    }
+    return out;
+  }
 }
 
 function resolveLevels(options: SummariseOptions): { level: number; alpha: number } {
@@ -141,57 +208,6 @@ function resolveLevels(options: SummariseOptions): { level: number; alpha: numbe
   if (level !== undefined) return { level, alpha: 1 - level };
   if (alpha !== undefined) return { level: 1 - alpha, alpha };
   return { level: 0.95, alpha: 0.05 };
-}
-
-function groupRows(rows: readonly ReplicateRow[]): FitStatusAccumulator[] {
-  if (!Array.isArray(rows)) throw new Error('summarise: rows must be an array of replicate rows');
-  const byScenario = new Map<string, Map<string, FitStatusAccumulator>>();
-  const order: FitStatusAccumulator[] = [];
-  let lastGroup: FitStatusAccumulator | undefined;
-  let lastParam: ParameterAccumulator | undefined;
-  for (let i = 0; i < rows.length; i++) {
-    const row = rows[i];
-    checkReplicateRow(row, i);
-    let group = lastGroup;
-    if (group === undefined || group.scenario !== row.scenario || group.variant !== row.variant) {
-      let byVariant = byScenario.get(row.scenario);
-      if (byVariant === undefined) {
-        byVariant = new Map();
-        byScenario.set(row.scenario, byVariant);
-      }
-      group = byVariant.get(row.variant);
-      if (group === undefined) {
-        group = new FitStatusAccumulator(row.scenario, row.variant);
-        byVariant.set(row.variant, group);
-        order.push(group);
-      }
-      lastGroup = group;
-      lastParam = undefined;
-    }
-    let param = lastParam;
-    if (param === undefined || param.parameter !== row.parameter) {
-      param = group.parameters.get(row.parameter);
-      if (param === undefined) {
-        param = new ParameterAccumulator(row.scenario, row.variant, row.parameter, row.kind, row.truth, i);
-        group.parameters.set(row.parameter, param);
-        group.parameterOrder.push(param);
-      }
-      lastParam = param;
-    }
-    group.add(row.replicate, row.status, row.reason);
-    param.add(row, i);
-  }
-  for (const group of order) {
-    for (const p of group.parameterOrder) {
-      if (p.rows > group.replicates) {
-        throw new Error(
-          `summarise: ${p.describe()} has ${p.rows} rows but the scenario and variant have only ` +
-            `${group.replicates} distinct replicates; expected at most one row per replicate and parameter`,
-        );
-      }
-    }
-  }
-  return order;
 }
 
 /** Binomial MCSE of a proportion, sqrt(p(1-p)/n) (Morris et al. 2019, Table 6, coverage and power). */

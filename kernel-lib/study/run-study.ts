@@ -2,23 +2,21 @@ import { randomUUID } from 'node:crypto';
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
-import { csvField } from '../data/csv-field';
 import { parseDesign } from '../design/parse';
 import type { SurveyDesign } from '../design/types';
 import { QuadratInputError } from '../model/errors';
 import { batchesOfShard, planBatches, type Batch, type Shard } from './batch-plan';
-import { batchFileName, metricsCsvPath, metricsJsonPath } from './folder-layout';
+import { batchFileName, batchPath } from './folder-layout';
 import type { BatchReply, BatchTask } from './batch-worker';
 import { failureWarnings } from './failure-warnings';
-import { summarise, type MetricRow } from './metrics';
-import { parseReplicateCsv, replicateRowsToCsv } from './replicate-csv';
+import type { MetricRow } from './metrics';
+import { replicateRowsToCsv } from './replicate-csv';
 import type { ReplicateRow } from './replicate-row';
 import { ReplicateRunner } from './replicate-runner';
-import { variantLevels } from './variant-levels';
-import { variantScales } from './variant-scales';
 import { checkStudyOptions } from './check-study-options';
-import { assembleReplicates, fingerprintOf, openStudyFolder, readManifest, type StudyManifest } from './study-folder';
-import { checkBatches, removeBatch, removeStaleTemporaries, writeAtomic, writeBatch, type BatchStamp } from './batch-files';
+import { fingerprintOf, openStudyFolder, type StudyManifest } from './study-folder';
+import { checkBatches, removeBatch, removeStaleTemporaries, writeBatch, type BatchStamp } from './batch-files';
+import { ReplicateAssembly, type AssembledStudy } from './replicate-assembly';
 import { acquireFolderLock, checkWritableFolder, lockProblem, releaseFolderLock } from './folder-lock';
 
 export interface StudyProgress {
@@ -62,9 +60,15 @@ export interface RunStudyResult {
   warnings: string[];
   /** Summary metrics, when the whole study (not a shard) is complete. */
   metrics: MetricRow[] | null;
-  /** The per-replicate rows behind the metrics (as written to replicates.csv), when the metrics are there. */
+  /**
+   * The per-replicate rows behind the metrics (as written to replicates.csv), when the metrics are
+   * there; a large study's rows are read from replicates.csv on first access.
+   */
   replicates: ReplicateRow[] | null;
-  /** Seconds spent simulating and fitting (batches), and assembling replicates.csv and the metrics. */
+  /**
+   * Seconds spent simulating and fitting (batches, with replicates.csv and the metrics assembled
+   * alongside as batches finish), and finishing replicates.csv and the metrics after the last batch.
+   */
   timings: { runSeconds: number; finaliseSeconds: number };
 }
 
@@ -164,13 +168,13 @@ async function runLocked(
   if (stale) warnings.push(`removed ${stale} temporary file(s) left by an interrupted run`);
   const all = planBatches(scenarios.length, manifest.replicates, manifest.batchSize);
   const mine = options.shard ? batchesOfShard(all, options.shard) : all;
-  const { good: onDisk, bad } = checkBatches(options.out, stamp.study);
+  const { good: onDiskAtStart, bad } = checkBatches(options.out, stamp.study);
   for (const b of bad) {
     removeBatch(options.out, b.name);
     warnings.push(`batch ${b.name} failed its check (${b.problem}): recomputing it`);
   }
-  const todo = mine.filter((b) => !onDisk.has(batchFileName(b)));
-  const resumed = mine.filter((b) => onDisk.has(batchFileName(b))).reduce((n, b) => n + b.to - b.from, 0);
+  const todo = mine.filter((b) => !onDiskAtStart.has(batchFileName(b)));
+  const resumed = mine.filter((b) => onDiskAtStart.has(batchFileName(b))).reduce((n, b) => n + b.to - b.from, 0);
   const total = todo.reduce((n, b) => n + b.to - b.from, 0);
   let done = 0;
   const report = () => {
@@ -183,37 +187,67 @@ async function runLocked(
   const workers = Math.max(1, Math.min(maxWorkers, todo.length || 1));
   let ran = 0;
   const runStarted = Date.now();
+  // replicates.csv and the metrics grow in study order as batches land (a shard only writes batches)
+  const assembly = options.shard ? null : new ReplicateAssembly(options.out, all, stamp.study);
+  const written = new Set<number>();
+  const onDisk = (b: Batch) => written.has(b.ordinal) || onDiskAtStart.has(batchFileName(b));
   const finish = (b: Batch, csv: string | null) => {
     if (csv !== null) {
       const lost = lockProblem(options.out, stamp.run);
       if (lost) throw new Error(lost);
       writeBatch(options.out, b, csv, stamp);
     }
+    written.add(b.ordinal);
     done += b.to - b.from;
     ran++;
     report();
   };
-  if (workers === 1) {
-    for (const b of todo) {
-      if (options.signal?.aborted) break;
-      finish(b, replicateRowsToCsv(runner.runBatch(b.scenario, b.from, b.to)));
-      // let signals and timers through between batches
-      await new Promise((resolve) => setImmediate(resolve));
+  try {
+    assembly?.advance(onDisk);
+    if (workers === 1) {
+      for (const b of todo) {
+        if (options.signal?.aborted) break;
+        const rows = runner.runBatch(b.scenario, b.from, b.to);
+        const csv = replicateRowsToCsv(rows);
+        finish(b, csv);
+        assembly?.offer(b, csv, rows);
+        assembly?.advance(onDisk);
+        // let signals and timers through between batches
+        await new Promise((resolve) => setImmediate(resolve));
+      }
+    } else {
+      await runPool(todo, workers, source, options.out, stamp, options.signal, (b) => {
+        finish(b, null);
+        assembly?.advance(onDisk);
+      });
     }
-  } else {
-    await runPool(todo, workers, source, options.out, stamp, options.signal, (b) => finish(b, null));
+  } catch (e) {
+    assembly?.abandon();
+    throw e;
   }
   const interrupted = Boolean(options.signal?.aborted) && ran < todo.length;
   const complete = !interrupted && ran === todo.length;
   const runSeconds = (Date.now() - runStarted) / 1000;
   const finaliseStarted = Date.now();
-  const summary = complete && !options.shard ? finalise(options.out, all, stamp.study) : null;
+  let summary: AssembledStudy | null = null;
+  if (assembly && complete) {
+    assembly.advance(onDisk);
+    summary = assembly.finish();
+  } else {
+    assembly?.abandon();
+  }
   if (summary) warnings.push(...failureWarnings(summary.metrics));
-  return {
+  const result: RunStudyResult = {
     folder: options.out, scenarios, batchesRun: ran, batchesSkipped: mine.length - todo.length, complete, interrupted,
-    seconds: (Date.now() - started) / 1000, warnings, metrics: summary?.metrics ?? null, replicates: summary?.rows ?? null,
+    seconds: (Date.now() - started) / 1000, warnings, metrics: summary?.metrics ?? null, replicates: null,
     timings: { runSeconds, finaliseSeconds: (Date.now() - finaliseStarted) / 1000 },
   };
+  // the rows stay where the assembly keeps them (read from replicates.csv on first access for a large study)
+  if (summary) {
+    const assembled = summary;
+    Object.defineProperty(result, 'replicates', { enumerable: true, get: () => assembled.rows });
+  }
+  return result;
 }
 
 /**
@@ -266,22 +300,8 @@ function runPool(
 }
 
 /** Write replicates.csv and the metrics once every batch is on disk (each checked; with `study`, also who wrote it). */
-export function finalise(folder: string, batches: Batch[], study = ''): { metrics: MetricRow[]; rows: ReplicateRow[] } | null {
-  const text = assembleReplicates(folder, batches, study);
-  if (text === null) return null;
-  const rows = parseReplicateCsv(text, 'replicates.csv');
-  const design = parseDesign(readManifest(folder).design);
-  const metrics = summarise(rows, { levels: variantLevels(design), otherScale: variantScales(design) });
-  writeAtomic(metricsJsonPath(folder), JSON.stringify(metrics, null, 1));
-  writeAtomic(metricsCsvPath(folder), metricsToCsv(metrics));
-  return { metrics, rows };
-}
-
-function metricsToCsv(metrics: MetricRow[]): string {
-  const cols = ['scenario', 'variant', 'parameter', 'kind', 'metric', 'value', 'mcse', 'n', 'note'] as const;
-  const lines = [cols.join(',')];
-  for (const m of metrics) {
-    lines.push(cols.map((c) => (c === 'note' ? csvField(m.note ?? '') : typeof m[c] === 'string' ? csvField(m[c] as string) : Number.isNaN(m[c] as number) ? '' : String(m[c]))).join(','));
-  }
-  return `${lines.join('\n')}\n`;
+export function finalise(folder: string, batches: Batch[], study = ''): AssembledStudy | null {
+  const assembly = new ReplicateAssembly(folder, batches, study);
+  assembly.advance((b) => existsSync(batchPath(folder, batchFileName(b))));
+  return assembly.finish();
 }

@@ -2,16 +2,14 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { QuadratInputError } from '../model/errors';
-import type { Batch } from './batch-plan';
-import { batchFileName, batchPath, batchesFolder, manifestPath, replicatesPath, scenariosPath } from './folder-layout';
-import { REPLICATE_HEADER } from './replicate-csv';
-import { readCheckedBatch, writeAtomic } from './batch-files';
+import { batchesFolder, manifestPath, scenariosPath } from './folder-layout';
+import { writeAtomic } from './batch-files';
 
 export { finishedBatches, writeAtomic, writeBatch } from './batch-files';
 
 /**
- * A study folder's manifest (study.json) and the assembly of replicates.csv; the folder's layout
- * is ./folder-layout. Files are written as temporary file, flush, rename: whole or not at all.
+ * A study folder's manifest (study.json); the folder's layout is ./folder-layout, the assembly of
+ * replicates.csv and the metrics ./replicate-assembly. Files are written as temporary file, flush, rename: whole or not at all.
  */
 export interface StudyManifest {
   format: 'quadrat-study/1';
@@ -68,25 +66,4 @@ export function readManifest(folder: string): StudyManifest {
   const path = manifestPath(folder);
   if (!existsSync(path)) throw new QuadratInputError(`"${folder}" is not a study folder (no study.json)`, { field: 'folder' });
   return JSON.parse(readFileSync(path, 'utf8')) as StudyManifest;
-}
-
-/**
- * Concatenate all batches in study order into replicates.csv; returns its text (so the caller need
- * not read it back), or null when some batches are missing. Every batch is checked (row count,
- * checksum, and with `study` the study that wrote it); one that fails stops the assembly naming it.
- */
-export function assembleReplicates(folder: string, batches: readonly Batch[], study = ''): string | null {
-  const parts = [`${REPLICATE_HEADER}\n`];
-  for (const b of batches) {
-    const name = batchFileName(b);
-    if (!existsSync(batchPath(folder, name))) return null;
-    const r = readCheckedBatch(folder, name, study);
-    if ('problem' in r) {
-      throw new Error(`batch ${name} in "${folder}" failed its check: ${r.problem}; run the study again to recompute it`);
-    }
-    parts.push(r.text);
-  }
-  const text = parts.join('');
-  writeAtomic(replicatesPath(folder), text);
-  return text;
 }

@@ -91,6 +91,16 @@ function notEstimableNote(metrics: readonly MetricRow[], parameter: string): str
   return `Not estimable with ${never.map((v) => `**${v}**`).join(', ')} (aliased with the variant's fixed grouping columns), so ${never.length > 1 ? 'they have' : 'it has'} no points here.`;
 }
 
+/** What a count or detection study assumes, and why its Wald intervals are approximate. */
+function countCautions(design: { family?: string }): string[] {
+  const family = design.family ?? 'gaussian';
+  if (family === 'gaussian') return [];
+  return [
+    `The ${family} responses were drawn exactly from that family around the stated linear predictor, with normal random effects on the link scale and any effort or trials known without error; real counts are often more variable (overdispersion) than that.`,
+    'Wald intervals of mixed models for counts and detections are approximate, more so with few groups; the coverage above shows by how much for these designs only.',
+  ];
+}
+
 /** A self-contained HTML summary of a finished study. */
 export async function studyReportHtml(results: StudyResults, title = 'Simulation study', reading: ReadingOptions = {}): Promise<string> {
   const { manifest, metrics } = results;
@@ -126,6 +136,7 @@ export async function studyReportHtml(results: StudyResults, title = 'Simulation
     sections,
     cautions: [
       'Coverage, bias and power describe these simulated designs and truths only; a real survey that differs (other variances, non-normal responses, informative missingness) can behave differently.',
+      ...countCautions(manifest.design as { family?: string }),
     ],
   });
 }

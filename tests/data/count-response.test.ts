@@ -36,4 +36,35 @@ describe('count and detection responses in the design', () => {
     e = inputError(() => build({ ...base, n: [0, 3, 5, 2] }, { response: 'n', family: 'poisson', offset: 'effort' }));
     expect(e.field).toBe('model.offset');
   });
+
+  it('covers the rest of the bad-input list: each family, each kind of bad trials and offset', () => {
+    // counts: non-integer for Poisson, negative for the negative binomial
+    let e = inputError(() => build({ ...base, n: [0, 3, 1.5, 2] }, { response: 'n', family: 'poisson' }));
+    expect([e.column, e.row]).toEqual(['n', 3]);
+    expect(e.message).toMatch(/whole numbers ≥ 0/);
+    e = inputError(() => build({ ...base, n: [0, 3, 1, -2] }, { response: 'n', family: 'negative-binomial' }));
+    expect([e.column, e.row]).toEqual(['n', 4]);
+    // a 0/1 response given to Poisson is refused, naming the family field and the column
+    e = inputError(() => build({ ...base, n: [0, 1, 1, 0] }, { response: 'n', family: 'poisson' }));
+    expect([e.column, e.field]).toEqual(['n', 'model.family']);
+    // but a negative binomial of 0/1 counts is left alone (the check is Poisson's)
+    expect(build({ ...base, n: [0, 1, 1, 0] }, { response: 'n', family: 'negative-binomial' }).n).toBe(4);
+    // trials: negative, fractional, absent column, text
+    e = inputError(() => build({ ...base, s: [1, 1, 1, 0], m: [2, 2, 2, -1] }, { response: 's', family: 'binomial', trials: 'm' }));
+    expect([e.column, e.row]).toEqual(['m', 4]);
+    e = inputError(() => build({ ...base, s: [1, 1, 1, 0], m: [2, 2.5, 2, 2] }, { response: 's', family: 'binomial', trials: 'm' }));
+    expect([e.column, e.row]).toEqual(['m', 2]);
+    e = inputError(() => build({ ...base, s: [1, 1, 1, 0] }, { response: 's', family: 'binomial', trials: 'visits' }));
+    expect([e.field, e.column]).toEqual(['model.trials', 'visits']);
+    e = inputError(() => build({ ...base, s: [1, 1, 1, 0], m: [2, 2, 'two', 2] }, { response: 's', family: 'binomial', trials: 'm' }));
+    expect([e.column, e.row]).toEqual(['m', 3]);
+    // a fixed number of trials below 1 is a model error
+    e = inputError(() => build({ ...base, s: [1, 1, 1, 0] }, { response: 's', family: 'binomial', trials: 0 }));
+    expect(e.field).toBe('model.trials');
+    // offsets: NaN, −Infinity, text
+    for (const bad of [NaN, -Infinity, 'long']) {
+      e = inputError(() => build({ ...base, n: [0, 3, 5, 2], eff: [0, 0, bad, 1] }, { response: 'n', family: 'poisson', offset: 'eff' }));
+      expect([e.column, e.row]).toEqual(['eff', 3]);
+    }
+  });
 });

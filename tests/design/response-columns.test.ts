@@ -3,7 +3,7 @@
  * (kernel-lib/design/response-columns.ts, drawn in kernel-lib/design/simulate.ts).
  */
 import { describe, expect, it } from 'vitest';
-import { mkdtempSync, readFileSync, rmSync } from 'fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync } from 'fs';
 import { tmpdir } from 'os';
 import { join } from 'path';
 import { ReplicateRunner } from '../../kernel-lib/study/replicate-runner';
@@ -70,6 +70,17 @@ describe('trials drawn per observation', () => {
     const a = new ReplicateRunner(design).simulate(0, 3).columns.visits as Float64Array;
     const b = new ReplicateRunner(design).simulate(0, 3).columns.visits as Float64Array;
     expect(Array.from(a)).toEqual(Array.from(b));
+  });
+
+  it('a study with bad count input stops before anything is written', async () => {
+    const out = join(mkdtempSync(join(tmpdir(), 'quadrat-bad-')), 'study');
+    try {
+      await expect(runStudy(detectionDesign({ trials: { min: 0, max: 3 } }), { out, workers: 1 })).rejects.toMatchObject({ field: 'design.trials.min' });
+      await expect(runStudy(effortDesign({ offset: 'hours' }), { out, workers: 1 })).rejects.toMatchObject({ field: 'design.offset' });
+      expect(existsSync(out)).toBe(false);
+    } finally {
+      rmSync(join(out, '..'), { recursive: true, force: true });
+    }
   });
 
   it('refuses a bad range, a clashing column, and a binomial variant that does not name the drawn column', () => {

@@ -42,3 +42,25 @@ describe('study report and summary table', () => {
     expect(line).toContain('not estimable');
   });
 });
+
+describe('report of a count study', () => {
+  it('names the variant on another scale, keeps only its power, and carries the count cautions', async () => {
+    const folder = mkdtempSync(join(tmpdir(), 'quadrat-report-count-'));
+    // invented: 12 sites × 3 visits of nest counts, analysed as counts and as normal
+    await runStudy({
+      seed: 4, replicates: 10,
+      factors: [{ name: 'site', levels: 12 }], perCell: 3,
+      covariates: [{ name: 'x', varies: 'observation', normal: { mean: 0, sd: 1 } }],
+      family: 'poisson',
+      truth: { fixed: { intercept: 1, x: 0.3 }, sd: { site: 0.3 } },
+      variants: [
+        { name: 'counts', model: { response: 'y', family: 'poisson', fixed: ['x'], groups: [{ factor: 'site', as: 'random' }] } },
+        { name: 'as normal', model: { response: 'y', fixed: ['x'], groups: [{ factor: 'site', as: 'random' }] } },
+      ],
+    }, { out: folder, workers: 1 });
+    const html = await studyReportHtml(readStudyFolder(folder));
+    expect(html).toMatch(/Only power and type I error for <strong>as normal<\/strong>: on another scale than the truth/);
+    expect(html).toMatch(/poisson responses were drawn exactly from that family/);
+    expect(html).toMatch(/Wald intervals of mixed models for counts and detections are approximate/);
+  }, 60_000);
+});

@@ -49,10 +49,11 @@ export function countProfileFixed(ctx: CountContext, level: number): ProfileInte
   for (let j = 0; j < p; j++) {
     const keep = Array.from({ length: p }, (_, a) => a).filter((a) => a !== j);
     const minus = restrictColumns(design, keep);
-    const offset = new Float64Array(n);
     const zeta = (delta: number): number => {
       if (delta === 0) return 0;
       const v = estimate.beta[j] + delta;
+      // a fresh array per value: the fitting keeps workspaces per (design, offset array)
+      const offset = new Float64Array(n);
       for (let i = 0; i < n; i++) offset[i] = base[i] + v * X[i * p + j];
       const d = deviance(refit(ctx, minus, offset));
       return Number.isNaN(d) ? NaN : Math.sign(delta) * Math.sqrt(Math.max(0, d - dHat));

@@ -14,6 +14,10 @@ export interface NewtonOptions {
    * only when an update fails the curvature condition or a step needs halving.
    */
   hessian?: 'differences' | 'bfgs';
+  /** A Hessian (d × d, row-major) to start from instead of differences (e.g. that of a nearby problem). */
+  hessianStart?: ArrayLike<number>;
+  /** Where to keep the working Hessian; it holds the last approximation on return. */
+  hessianOut?: Float64Array;
 }
 
 /**
@@ -41,7 +45,7 @@ export function newtonMinimise(
   const g = new Float64Array(d);
   const gt = new Float64Array(d);
   const xt = new Float64Array(d);
-  const hess = new Float64Array(d * d);
+  const hess = options.hessianOut ?? new Float64Array(d * d);
   const sys = new Float64Array(d * d);
   const step = new Float64Array(d);
   const free = new Uint8Array(d);
@@ -49,6 +53,10 @@ export function newtonMinimise(
   const bs = new Float64Array(d);
   const bfgs = (options.hessian ?? 'bfgs') === 'bfgs';
   let fresh = true;
+  if (options.hessianStart) {
+    for (let a = 0; a < d * d; a++) hess[a] = options.hessianStart[a];
+    fresh = false;
+  }
   let lastDecrease = Infinity;
   let evaluations = 1;
   let f = fg(x, g);

@@ -303,6 +303,7 @@ function fitOneIntercept(
   const gradBuf = new Float64Array(1 + p);
   const betaWork = new Float64Array(p);
   let thetaNow = thetaFixed ? options.theta![0] : 0;
+  let nodesNow = nodes;
   const unpack = (phi: ArrayLike<number>): number => {
     if (!thetaFixed) thetaNow = phi[0];
     for (let a = 0; a < p; a++) betaWork[a] = phi[dTheta + a];
@@ -311,7 +312,7 @@ function fitOneIntercept(
   const fg = (phi: Float64Array, g: Float64Array): number => {
     evaluations++;
     const kk = unpack(phi);
-    const v = quad.deviance(thetaNow, betaWork, kk, nodes, gradBuf);
+    const v = quad.deviance(thetaNow, betaWork, kk, nodesNow, gradBuf);
     if (!thetaFixed) g[0] = gradBuf[0];
     for (let a = 0; a < p; a++) g[dTheta + a] = gradBuf[1 + a];
     if (estimateK) {
@@ -319,7 +320,7 @@ function fitOneIntercept(
       const h = 1e-5;
       const lk = phi[dim - 1];
       evaluations += 2;
-      g[dim - 1] = (quad.deviance(thetaNow, betaWork, Math.exp(lk + h), nodes) - quad.deviance(thetaNow, betaWork, Math.exp(lk - h), nodes)) / (2 * h);
+      g[dim - 1] = (quad.deviance(thetaNow, betaWork, Math.exp(lk + h), nodesNow) - quad.deviance(thetaNow, betaWork, Math.exp(lk - h), nodesNow)) / (2 * h);
     }
     return v;
   };
@@ -333,7 +334,20 @@ function fitOneIntercept(
   }
   for (let a = 0; a < p; a++) { start[dTheta + a] = fitGlm.beta[a]; lower[dTheta + a] = -1e4; upper[dTheta + a] = 1e4; }
   if (estimateK) { start[dim - 1] = Math.log(kGlm); lower[dim - 1] = LOG_K_MIN; upper[dim - 1] = LOG_K_MAX; }
-  const res = newtonMinimise(fg, start, lower, upper);
+  // quadrature: first the Laplace optimum (a few cheap evaluations), then quadrature from there,
+  // starting from the Laplace Hessian instead of differencing the costlier deviance
+  let res: ReturnType<typeof newtonMinimise>;
+  if (nodes > 1) {
+    const hessian = new Float64Array(dim * dim);
+    nodesNow = 1;
+    const laplace = newtonMinimise(fg, start, lower, upper, { hessianOut: hessian });
+    nodesNow = nodes;
+    res = laplace.converged && Number.isFinite(laplace.value)
+      ? newtonMinimise(fg, laplace.x, lower, upper, { hessianStart: hessian })
+      : newtonMinimise(fg, start, lower, upper);
+  } else {
+    res = newtonMinimise(fg, start, lower, upper);
+  }
   let converged = res.converged;
   let reason = res.reason;
   let k = unpack(res.x);

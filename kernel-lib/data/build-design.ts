@@ -111,18 +111,9 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
 
   // Column kinds and codings, computed once per column.
   const groupFactors = new Set(model.groups.map((g) => g.factor));
-  const forcedCategorical = new Set<string>([...model.categorical, ...groupFactors]);
+  const forcedCategorical = forcedCategoricalColumns(model);
   const references = columnReferences(model);
-  for (const t of model.fixed) if (typeof t !== 'string') forcedCategorical.add(t.column);
-  const kinds = new Map<string, ColumnKind>();
-  const kindOf = (column: string): ColumnKind => {
-    let kind = kinds.get(column);
-    if (kind === undefined) {
-      kind = forcedCategorical.has(column) ? 'categorical' : inferColumnKind(data[column], rowIds, column);
-      kinds.set(column, kind);
-    }
-    return kind;
-  };
+  const kindOf = columnKinds(data, rowIds, forcedCategorical);
   const numericCache = new Map<string, Float64Array>();
   const numeric = (column: string): Float64Array => {
     let v = numericCache.get(column);
@@ -263,6 +254,26 @@ export function buildDesign(data: Columns, model: ResolvedModel): DesignMatrices
   for (const b of groupBlocks) fillGroupBlock(X, p, n, b);
 
   return { n, p, X, fixedNames, roles, y, random, levelCounts, droppedRows, rowIds, warnings, ...countColumns };
+}
+
+/** Columns that are factors whatever their values: listed as categorical, grouping factors, object terms. */
+export function forcedCategoricalColumns(model: ResolvedModel): Set<string> {
+  const forced = new Set<string>([...model.categorical, ...model.groups.map((g) => g.factor)]);
+  for (const t of model.fixed) if (typeof t !== 'string') forced.add(t.column);
+  return forced;
+}
+
+/** Each column's kind (forced categorical, else inferred from the rows used), found once per column. */
+export function columnKinds(data: Columns, rowIds: Int32Array, forced: Set<string>): (column: string) => ColumnKind {
+  const kinds = new Map<string, ColumnKind>();
+  return (column) => {
+    let kind = kinds.get(column);
+    if (kind === undefined) {
+      kind = forced.has(column) ? 'categorical' : inferColumnKind(data[column], rowIds, column);
+      kinds.set(column, kind);
+    }
+    return kind;
+  };
 }
 
 /** The warning for a random grouping factor with one observation per level. */

@@ -16,13 +16,12 @@ import type { DesignMatrices, RandomTerm } from './design-matrices';
 import type { ResolvedModel } from '../model/types';
 import { INTERCEPT, groupMeanName, isInteraction, levelName, termColumns, termLabel } from '../model/terms';
 import { columnLength, type Columns } from './columns';
-import { inferColumnKind, type ColumnKind } from './column-kind';
 import { isMissing } from './missing';
 import { responseShapeWarning } from './response-shape';
 import { countResponseColumns } from './count-response';
 import { codeColumn, nestFactor, sortFactor, type CodedFactor } from './factor';
 import {
-  buildDesign, columnReferences, fillFixedBlock, fillGroupBlock, onePerLevelWarning, usedColumns,
+  buildDesign, columnKinds, columnReferences, fillFixedBlock, forcedCategoricalColumns, fillGroupBlock, onePerLevelWarning, usedColumns,
   type CategoricalCoding, type Coding, type FixedBlock, type FixedGroupBlock,
 } from './build-design';
 
@@ -108,19 +107,9 @@ export function planDesign(data: Columns, model: ResolvedModel, built?: DesignMa
 
 function compilePlan(data: Columns, model: ResolvedModel, d0: DesignMatrices, capacity: number): DesignPlan {
   const rowIds = d0.rowIds;
-  const groupFactors = new Set(model.groups.map((g) => g.factor));
-  const forced = new Set<string>([...model.categorical, ...groupFactors]);
-  for (const t of model.fixed) if (typeof t !== 'string') forced.add(t.column);
+  const forced = forcedCategoricalColumns(model);
   const references = columnReferences(model);
-  const kinds = new Map<string, ColumnKind>();
-  const kindOf = (column: string): ColumnKind => {
-    let kind = kinds.get(column);
-    if (kind === undefined) {
-      kind = forced.has(column) ? 'categorical' : inferColumnKind(data[column], rowIds, column);
-      kinds.set(column, kind);
-    }
-    return kind;
-  };
+  const kindOf = columnKinds(data, rowIds, forced);
   const numeric = new Map<string, Float64Array>();
   const numericOf = (column: string): Float64Array => {
     let v = numeric.get(column);

@@ -11,6 +11,7 @@ import type { DesignMatrices } from '../../data/design-matrices';
 import { ProfiledDeviance } from '../profiled-deviance';
 import { optimiseTheta } from '../optimise-theta';
 import { createStream } from '../../random/stream';
+import { addDrawnEffects } from './random-draw';
 import { CountBootstrapRunner, countBootstrapWidth, type CountResampling } from './count-bootstrap';
 
 export const BOOTSTRAP_DEFAULTS = { resamples: 999, seed: 1 };
@@ -54,6 +55,7 @@ class BootstrapRunner {
   private readonly mean: Float64Array;
   private readonly ystar: Float64Array;
   private readonly u: Float64Array;
+  private readonly b: Float64Array;
   readonly width: number;
 
   constructor(private readonly model: BootstrapModel) {
@@ -68,6 +70,7 @@ class BootstrapRunner {
     }
     this.ystar = new Float64Array(n);
     this.u = new Float64Array(this.dev.q);
+    this.b = new Float64Array(this.dev.q);
     this.width = bootstrapWidth(design);
   }
 
@@ -86,22 +89,7 @@ class BootstrapRunner {
     ystar.set(this.mean);
     dev.setTheta(theta);
     // b = σ Λ u per term and level, added through Z
-    for (let s = 0; s < dev.terms.length; s++) {
-      const t = dev.terms[s];
-      const T = dev.templates[s];
-      const k = t.k;
-      const { index, values } = t.term;
-      for (let i = 0; i < design.n; i++) {
-        const base = t.start + index[i] * k;
-        let add = 0;
-        for (let a = 0; a < k; a++) {
-          let bia = 0;
-          for (let c = 0; c <= a; c++) bia += T[a * k + c] * u[base + c];
-          add += values[i * k + a] * bia;
-        }
-        ystar[i] += sigma * add;
-      }
-    }
+    addDrawnEffects(dev, u, this.b, sigma, ystar);
     for (let i = 0; i < design.n; i++) ystar[i] += sigma * stream.normal();
     dev.setResponse(ystar);
     let thetaStar: Float64Array;

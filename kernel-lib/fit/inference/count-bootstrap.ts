@@ -15,6 +15,7 @@ import type { DesignMatrices } from '../../data/design-matrices';
 import { RESPONSE_FAMILIES } from '../../family/index';
 import { createStream } from '../../random/stream';
 import { ProfiledDeviance } from '../profiled-deviance';
+import { addDrawnEffects } from './random-draw';
 import { estimateCountModel, type CountFitOptions } from '../estimate/count-model';
 
 /**
@@ -41,6 +42,7 @@ export class CountBootstrapRunner {
   private readonly ystar: Float64Array;
   private readonly eta: Float64Array;
   private readonly u: Float64Array;
+  private readonly b: Float64Array;
   private readonly resampled: DesignMatrices;
   readonly width: number;
 
@@ -61,6 +63,7 @@ export class CountBootstrapRunner {
     }
     this.layout = design.random.length ? new ProfiledDeviance(design, false) : null;
     this.u = new Float64Array(this.layout ? this.layout.q : 0);
+    this.b = new Float64Array(this.u.length);
     this.ystar = new Float64Array(n);
     this.eta = new Float64Array(n);
     this.resampled = { ...design, y: this.ystar };
@@ -84,22 +87,7 @@ export class CountBootstrapRunner {
     eta.set(this.base);
     if (layout) {
       layout.setTheta(this.theta);
-      for (let s = 0; s < layout.terms.length; s++) {
-        const t = layout.terms[s];
-        const T = layout.templates[s];
-        const k = t.k;
-        const { index, values } = t.term;
-        for (let i = 0; i < design.n; i++) {
-          const start = t.start + index[i] * k;
-          let add = 0;
-          for (let a = 0; a < k; a++) {
-            let bia = 0;
-            for (let c = 0; c <= a; c++) bia += T[a * k + c] * u[start + c];
-            add += values[i * k + a] * bia;
-          }
-          eta[i] += add;
-        }
-      }
+      addDrawnEffects(layout, u, this.b, 1, eta);
     }
     for (let i = 0; i < design.n; i++) ystar[i] = family.draw(family.linkInverse(eta[i]), stream, params, trials ? trials[i] : 1);
     const est = estimateCountModel(this.resampled, count.options);

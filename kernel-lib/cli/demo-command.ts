@@ -36,8 +36,12 @@ export async function demoCommand(argv: string[], print: (s: string) => void): P
   // the answer first: year random or fixed, by the reading's stated rules
   print(readingText(readStudy(result.metrics, results.manifest.scenarios)));
   print('');
-  const key = result.metrics.filter((m) => m.parameter === 'intercept' || m.parameter === 'grazing=ungrazed' || m.parameter === 'sd(year)');
+  // every parameter the design gives a truth for; the year=… coefficients of "year fixed" are in metrics.csv
+  const truth = design.truth as { fixed?: Record<string, number>; sd?: Record<string, number> };
+  const parameters = new Set([...Object.keys(truth.fixed ?? {}), ...Object.keys(truth.sd ?? {}).map((f) => `sd(${f})`)]);
+  const key = result.metrics.filter((m) => parameters.has(m.parameter));
   print(formatMetricsTable(key, ['coverage', 'bias', 'rmse', 'width', 'power', 'sdMean', 'sdMedian']));
+  print('Each cell: value (Monte Carlo SE), rounded to the digits the Monte Carlo SE supports; truth: the value the data were drawn from.');
   const report = reportPath(out);
   writeFileSync(report, await studyReportHtml(results, 'Demo study: year random or fixed? (invented survey)'));
   print(`\nAll metrics: ${relative(process.cwd(), metricsCsvPath(out)) || out}; per-replicate results: replicates.csv`);

@@ -63,7 +63,7 @@ export const COMMAND_HELP: Record<string, CommandHelp> = {
   'study report': {
     short: 'write an HTML report of a study',
     usage: 'study report <folder> [--out <file.html>] [--title <text>]',
-    about: 'Write a self-contained HTML report of a finished study (charts, tables, cautions).',
+    about: 'Write a self-contained HTML report of a finished study: the answer in plain words, a summary table with the true values, charts (one colour per variant throughout), fit problems, every metric in a folded appendix, cautions.',
     options: [
       ['--out <file.html>', 'where to write it (default: <folder>/report.html)'],
       ['--title <text>', 'the report\'s title (default: "Simulation study")'],

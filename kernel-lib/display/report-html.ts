@@ -17,6 +17,8 @@ export interface ReportSection {
   html?: string;
   /** An SVG document (e.g. from specToSvg), inlined. */
   chartSvg?: string;
+  /** Fold the section's html and chart under this line (an HTML `<details>` the reader opens); its prose stays visible. */
+  collapsed?: string;
 }
 
 export interface ReportInput {
@@ -26,16 +28,22 @@ export interface ReportInput {
   cautions?: string[];
 }
 
+/** Width of the report's text column in CSS pixels; charts are sized to it. */
+export const REPORT_CONTENT_WIDTH = 960;
+
 const CSS = `
-body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, sans-serif; color: #222; max-width: 60rem; margin: 2rem auto; padding: 0 1rem; line-height: 1.5; }
+body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, sans-serif; color: #222; max-width: ${REPORT_CONTENT_WIDTH}px; margin: 2rem auto; padding: 0 1rem; line-height: 1.5; }
 h1 { border-bottom: 2px solid #4c78a8; padding-bottom: .3rem; }
 h2 { margin-top: 2rem; color: #2b4a6f; }
 code { background: #f3f3f3; padding: 0 .2em; border-radius: 3px; }
 table.quadrat-table { border-collapse: collapse; margin: 1rem 0; font-variant-numeric: tabular-nums; }
-table.quadrat-table th, table.quadrat-table td { padding: .25rem .6rem; border-bottom: 1px solid #ddd; }
+table.quadrat-table th, table.quadrat-table td { padding: .25rem .6rem; border-bottom: 1px solid #ddd; white-space: nowrap; }
+div.table-scroll { overflow-x: auto; }
 table.quadrat-table thead th { border-bottom: 2px solid #999; }
 table.quadrat-table caption { caption-side: top; text-align: left; font-weight: 600; padding-bottom: .3rem; }
 figure.chart { margin: 1rem 0; overflow-x: auto; }
+figure.chart svg { max-width: 100%; height: auto; }
+details > summary { cursor: pointer; color: #2b4a6f; margin: .5rem 0; }
 section.cautions { margin-top: 2.5rem; padding: .8rem 1rem; border-left: 4px solid #c0392b; background: #fdf3f2; }
 section.cautions h2 { margin-top: 0; color: #c0392b; }
 `;
@@ -78,13 +86,15 @@ export function reportHtml(input: ReportInput): string {
     const heading = checkText(`${where} heading`, section.heading);
     body.push('<section>', `<h2>${escapeHtml(heading)}</h2>`);
     if (section.markdown !== undefined) body.push(markdownToHtml(section.markdown));
+    if (section.collapsed !== undefined) body.push(`<details><summary>${escapeHtml(checkText(`${where} collapsed`, section.collapsed))}</summary>`);
     if (section.html !== undefined) {
       checkSelfContained(`${where} ("${heading}") html`, section.html);
-      body.push(section.html);
+      body.push(`<div class="table-scroll">${section.html}</div>`);
     }
     if (section.chartSvg !== undefined) {
       body.push(`<figure class="chart">${inlineSvg(`${where} ("${heading}") chartSvg`, section.chartSvg)}</figure>`);
     }
+    if (section.collapsed !== undefined) body.push('</details>');
     body.push('</section>');
   });
   const items = cautions.map((c, i) => `<li>${escapeHtml(checkText(`cautions[${i}]`, c))}</li>`);

@@ -96,7 +96,7 @@ export function surveySentences(summary: SurveySummary, response?: string): stri
   if (few.length) {
     lines.push(
       `${few.map((f) => `\`${f.factor}\` (${f.levels})`).join(', ')}: fewer than ${FEW_LEVELS} levels. ` +
-        'As a random effect its SD rests on very few values; whether to enter it as random or fixed is what the coverage study (notebook 03) checks.',
+        'As a random effect its SD rests on very few values; whether to enter it as random or fixed is what a simulation study of a design like this one checks.',
     );
   }
   return lines;

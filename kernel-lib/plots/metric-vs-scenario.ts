@@ -93,6 +93,9 @@ const METRICS: Record<MetricName, MetricInfo> = {
 /** Metric names the builder accepts (every metric the study summary produces). */
 const PLOTTABLE_METRICS = Object.keys(METRICS) as MetricName[];
 
+/** Proportions drawn on a fixed 0–1 axis (coverage and type I error zoom in on their nominal level instead). */
+const WHOLE_RANGE_METRICS: readonly MetricName[] = ['power', 'singularShare', 'nonconvergedShare', 'failureShare', 'notEstimableShare', 'noIntervalShare'];
+
 /** Fields the builder adds to each data row; scenario fields must not use these names. */
 const COMPUTED_FIELDS = ['value', 'mcse', 'n', 'mcLower', 'mcUpper', 'bandLower', 'bandUpper', 'note'];
 
@@ -176,6 +179,9 @@ export function metricVsScenario<R extends MetricRow>(
     options.variants,
     BUILDER,
   );
+  // colours follow the full variant order; the legend and the offsets list the variants drawn here
+  const drawn = new Set(kept.map((k) => k.row.variant));
+  const present = variants.filter((v) => drawn.has(v));
   let missingMcse = 0;
   const values: InlineRow[] = kept.map(({ row, index }, i) => {
     const value = readNumber(row, 'value', index, BUILDER);
@@ -220,9 +226,15 @@ export function metricVsScenario<R extends MetricRow>(
     scale: { type: 'band' as const, paddingInner: 0.25, paddingOuter: 0.15 },
     axis: { labelAngle: 0 },
   };
-  const xOffset = { field: 'variant', type: 'nominal' as const, scale: { domain: variants } };
-  const y = { field: 'value', type: 'quantitative' as const, title: info.name, scale: { zero: false } };
-  const colour = variantColour(variants, 'Analysis variant');
+  const xOffset = { field: 'variant', type: 'nominal' as const, scale: { domain: present } };
+  // Shares read against their whole range, so power of 1 everywhere looks like 1, not like a flat line at an arbitrary height.
+  const y = {
+    field: 'value',
+    type: 'quantitative' as const,
+    title: info.name,
+    scale: WHOLE_RANGE_METRICS.includes(metric) ? { domain: [0, 1], clamp: true } : { zero: false },
+  };
+  const colour = variantColour(variants, 'Analysis variant', present);
   const tooltip = [
     { field: 'variant', type: 'nominal' as const, title: 'Variant' },
     ...positional.map((f) => ({ field: fieldRef(f), type: 'ordinal' as const, title: fieldTitle(f, titles) })),
@@ -289,7 +301,7 @@ export function metricVsScenario<R extends MetricRow>(
   layers.push({
     name: 'metric_points',
     mark: { type: 'point', filled: true, size: 45, opacity: 1 },
-    encoding: { x: xEncoding, xOffset, y, color: colour, shape: variantShape(variants, 'Analysis variant'), tooltip },
+    encoding: { x: xEncoding, xOffset, y, color: colour, shape: variantShape(variants, 'Analysis variant', present), tooltip },
   });
 
   const subtitle = [info.meaning, `Points: one per analysis variant; bars: ± ${MC_MULTIPLIER} × Monte Carlo SE.`];
@@ -303,6 +315,8 @@ export function metricVsScenario<R extends MetricRow>(
   } else if (referenceValue !== undefined) {
     subtitle.push(`Dashed line: target ${referenceValue}.`);
   }
+  const constant = constantValue(values);
+  if (constant !== undefined) subtitle.push(constantNote(metric, info, constant));
   if (missingMcse > 0) {
     subtitle.push(`${plural(missingMcse, 'point has', 'points have')} no Monte Carlo SE (see the note in its tooltip).`);
   }
@@ -320,6 +334,20 @@ export function metricVsScenario<R extends MetricRow>(
     column: facetField(facet),
     row: facetField(facetRow),
   });
+}
+
+/** Every finite value of the chart when they are all the same (e.g. power 1 everywhere), else undefined. */
+function constantValue(values: readonly InlineRow[]): number | undefined {
+  const finite = values.map((v) => v.value).filter((v): v is number => typeof v === 'number');
+  return finite.length > 1 && finite.every((v) => v === finite[0]) ? finite[0] : undefined;
+}
+
+/** A chart of identical points says so in words: a flat row of dots is easy to misread. */
+function constantNote(metric: MetricName, info: MetricInfo, value: number): string {
+  if (metric === 'power' && value === 1) return 'Every point is 1: all replicates significant in every scenario and variant (Monte Carlo SE 0).';
+  if (metric === 'power' && value === 0) return 'Every point is 0: no replicate significant in any scenario or variant.';
+  if (metric === 'coverage' && value === 1) return 'Every point is 1: every interval contained the true value.';
+  return `Every point is ${value}: ${info.name.toLowerCase()} is the same in every scenario and variant.`;
 }
 
 /** Binomial Monte Carlo SE of a proportion p over n replicates (Morris, White and Crowther 2019, Table 6). */

@@ -134,21 +134,27 @@ export function variantOrder(present: readonly string[], requested: unknown, bui
   return order;
 }
 
-export function variantColour(order: readonly string[], title: string) {
-  return {
-    field: 'variant',
-    type: 'nominal' as const,
-    title,
-    scale: { domain: [...order], range: VARIANT_COLOURS.slice(0, order.length) },
-  };
+/**
+ * Colour of each variant: fixed by its position in `order` (the study's variant list), so a
+ * variant keeps its colour in every chart of a study, also in charts where only some variants
+ * appear. The scale lists `present` (default: every variant in `order`) in the legend.
+ */
+export function variantColour(order: readonly string[], title: string, present: readonly string[] = order) {
+  return variantScale(order, present, title, VARIANT_COLOURS);
 }
 
-export function variantShape(order: readonly string[], title: string) {
+/** Point shape of each variant, fixed like its colour. */
+export function variantShape(order: readonly string[], title: string, present: readonly string[] = order) {
+  return variantScale(order, present, title, VARIANT_SHAPES);
+}
+
+function variantScale(order: readonly string[], present: readonly string[], title: string, range: readonly string[]) {
+  const shown = order.filter((v) => present.includes(v));
   return {
     field: 'variant',
     type: 'nominal' as const,
     title,
-    scale: { domain: [...order], range: VARIANT_SHAPES.slice(0, order.length) },
+    scale: { domain: shown, range: shown.map((v) => range[order.indexOf(v)]) },
   };
 }
 

@@ -106,6 +106,9 @@ export function sdRecovery<R extends ReplicateRow>(replicates: readonly R[], opt
     options.variants,
     BUILDER,
   );
+  // colours follow the full variant order; the legend and the offsets list the variants drawn here
+  const drawn = new Set(kept.map((k) => k.row.variant));
+  const present = variants.filter((v) => drawn.has(v));
   const values: InlineRow[] = kept.map(({ row }, i) => {
     const out: InlineRow = {
       scenario: row.scenario as string,
@@ -130,8 +133,8 @@ export function sdRecovery<R extends ReplicateRow>(replicates: readonly R[], opt
     scale: { type: 'band' as const, paddingInner: 0.2, paddingOuter: 0.1 },
     axis: { labelAngle: 0 },
   };
-  const xOffset = { field: 'variant', type: 'nominal' as const, scale: { domain: variants, paddingInner: 0.15 } };
-  const colour = variantColour(variants, 'Analysis variant');
+  const xOffset = { field: 'variant', type: 'nominal' as const, scale: { domain: present, paddingInner: 0.15 } };
+  const colour = variantColour(variants, 'Analysis variant', present);
   const yTitle = 'Estimated SD';
   const groupby = positional.map(fieldRef);
 

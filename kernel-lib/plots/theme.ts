@@ -53,7 +53,8 @@ export const THEME_CONFIG: VegaLiteConfig = {
     gridColor: '#eeeeee',
   },
   header: { labelFontSize: 11, titleFontSize: 12, titleFontWeight: 'normal', labelColor: '#333333' },
-  legend: { labelFontSize: 11, titleFontSize: 12, titleFontWeight: 'normal', orient: 'bottom', symbolOpacity: 1 },
+  // no label limit: variant names such as 'year random, satterthwaite' are read in full
+  legend: { labelFontSize: 11, titleFontSize: 12, titleFontWeight: 'normal', orient: 'bottom', symbolOpacity: 1, labelLimit: 0 },
   title: {
     fontSize: 14,
     fontWeight: 'bold',

@@ -5,14 +5,15 @@
  */
 import type { MetricRow } from './metrics';
 
-export function failureWarnings(metrics: readonly MetricRow[]): string[] {
+/** `labels` gives readable scenario names (e.g. "year levels = 3"); default: the scenario keys. */
+export function failureWarnings(metrics: readonly MetricRow[], labels?: ReadonlyMap<string, string>): string[] {
   const out: string[] = [];
   for (const m of metrics) {
     if (m.metric !== 'failureShare' || !(m.value > 0)) continue;
     const failed = Math.round(m.value * m.n);
     const reasons = m.note?.split('; ').filter((s) => !s.startsWith('proportion is')).join('; ');
     out.push(
-      `variant "${m.variant}" (scenario ${m.scenario}): ${failed} of ${m.n} fits failed ` +
+      `variant "${m.variant}" (scenario ${labels?.get(m.scenario) ?? m.scenario}): ${failed} of ${m.n} fits failed ` +
         `(${(100 * m.value).toFixed(1)}%)` +
         `${reasons ? `; ${reasons}` : ''}. Metrics use the other replicates, so they describe only the data sets that could be fitted.`,
     );

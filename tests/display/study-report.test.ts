@@ -35,9 +35,18 @@ describe('study report and summary table', () => {
     expect(failedAt).toBeLessThan(html.indexOf('The answer in plain words'));
     expect(html).toMatch(/fits failed \(\d+\.\d%\); most common reasons:/);
     // habitat=wet is charted although only 'site random' estimates it, with the reason for the gap
-    expect(html).toContain('coverage of habitat=wet');
+    expect(html).toContain('Coverage of habitat=wet');
     expect(html).toContain('Not estimable with <strong>site fixed</strong>');
+    // the summary has a truth column and every parameter (rain's truth is 0.5 in the design above)
+    const summary = html.slice(html.indexOf('<h2>Summary</h2>'), html.indexOf('</table>', html.indexOf('<h2>Summary</h2>')));
+    expect(summary).toMatch(/<th[^>]*>truth<\/th>/);
+    for (const p of ['intercept', 'rain', 'habitat=wet', 'sd(site)', 'sd(residual)']) expect(summary).toContain(`>${p}<`);
+    expect(summary).toMatch(/>rain<\/td><td[^>]*>0\.5<\/td>/);
+    // the long table of every metric is folded away at the end; no scenario key with dotted paths is shown
+    expect(html).toMatch(/<h2>Appendix: all metrics<\/h2>[\s\S]*<details><summary>Show the table \(\d+ rows\)<\/summary>/);
+    expect(html).not.toContain('factors.year.levels=');
     const table = formatMetricsTable(r.metrics!);
+    expect(table.split('\n')[0]).toMatch(/parameter\s+truth\s+coverage/);
     const line = table.split('\n').find((l) => l.includes('site fixed') && l.includes('habitat=wet'))!;
     expect(line).toContain('not estimable');
   });

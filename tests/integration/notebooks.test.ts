@@ -338,9 +338,12 @@ describe.skipIf(!nbconvertWorks)('rendering every notebook', () => {
     const choice = JSON.parse(fs.readFileSync(choiceFile, 'utf8')) as { method: string; folder: string };
     expect((q.INTERVAL_METHODS as readonly string[]).includes(choice.method)).toBe(true);
     expect(fs.existsSync(path.join(choice.folder, 'metrics.json'))).toBe(true);
-    expect(outputs.get('04-analyse-survey.ipynb')).toContain(`Interval method: <strong>${choice.method}</strong>, favoured by the coverage study`);
+    expect(outputs.get('04-analyse-survey.ipynb')).toContain(`Interval method: <strong>${choice.method}</strong>, favoured by a coverage study`);
 
     const report = fs.readFileSync(path.join(tmp, 'out', 'survey-report.html'), 'utf8');
+    // the supervisor's report names no folder of this machine and no template notebook
+    expect(report).not.toContain(tmp);
+    expect(report).not.toMatch(/notebook 0\d/i);
     expect(report).not.toMatch(/<script\b/i);
     expect(report).toContain('<h2>Fixed effects</h2>');
     expect(report.match(/<figure class="chart"><svg\b/g)?.length ?? 0).toBeGreaterThan(3);

@@ -213,3 +213,27 @@ describe('metricVsScenario errors', () => {
     expect(a.domain).toEqual(['site fixed', 'site random']);
   });
 });
+
+describe('metricVsScenario for a metric equal to 1 everywhere', () => {
+  // Power of a strong effect: every replicate significant, so every point is 1 with MCSE 0.
+  const power = metricRows()
+    .filter((r) => r.metric === 'coverage')
+    .map((r) => ({ ...r, metric: 'power' as MetricName, value: 1, mcse: 0, nominal: undefined }));
+  const spec = metricVsScenario(power, { metric: 'power', x: 'levels', facet: 'perCell' }) as unknown as {
+    title: { subtitle: string[] };
+    spec: { layer: { name: string; encoding: { y: { scale: { domain?: number[]; zero?: boolean } } } }[] };
+  };
+
+  it('draws power on a fixed 0-1 axis and says in words that every replicate was significant', () => {
+    const points = spec.spec.layer.find((l) => l.name === 'metric_points')!;
+    expect(points.encoding.y.scale.domain).toEqual([0, 1]);
+    expect(spec.title.subtitle.join(' ')).toContain('all replicates significant');
+  });
+
+  it('keeps the zoomed axis and no such note for coverage that varies', () => {
+    const coverage = metricVsScenario(metricRows(), { metric: 'coverage', x: 'levels', facet: 'perCell' }) as unknown as typeof spec;
+    const points = coverage.spec.layer.find((l) => l.name === 'metric_points')!;
+    expect(points.encoding.y.scale.domain).toBeUndefined();
+    expect(coverage.title.subtitle.join(' ')).not.toContain('Every point');
+  });
+});

@@ -154,3 +154,22 @@ describe('sdRecovery errors', () => {
     );
   });
 });
+
+describe('sdRecovery colours across the charts of a study', () => {
+  // An SD that only one variant estimates (the other enters the factor as fixed) keeps that
+  // variant's colour from the study's variant order (common practice, no source: one colour per
+  // series across the figures of a report).
+  const only = replicateRows().filter((r) => r.variant === 'site fixed');
+  const colourScale = (spec: unknown) =>
+    (spec as { layer: { name: string; encoding: { color: { scale: { domain: string[]; range: string[] } } } }[] }).layer.find(
+      (l) => l.name === 'sd_boxes',
+    )!.encoding.color.scale;
+
+  it('gives a variant the colour of its place in options.variants, listing only the variants drawn', () => {
+    const all = colourScale(sdRecovery(replicateRows(), { x: 'levels', parameter: 'site', variants: ['site random', 'site fixed'] }));
+    const one = colourScale(sdRecovery(only, { x: 'levels', parameter: 'site', variants: ['site random', 'site fixed'] }));
+    expect(one.domain).toEqual(['site fixed']);
+    expect(one.range).toEqual([all.range[all.domain.indexOf('site fixed')]]);
+    expect(one.range[0]).not.toBe(all.range[0]);
+  });
+});

@@ -26,4 +26,9 @@ describe('failureWarnings', () => {
     expect(failureWarnings([share('v', 1, 3)])[0]).toMatch(/3 of 3 fits failed \(100\.0%\)\. Metrics/);
     expect(failureWarnings([share('v', 0, 3), share('w', NaN, 0)])).toEqual([]);
   });
+
+  it('names the scenario by its readable label when given one', () => {
+    const labels = new Map([['A', 'year levels = 3']]);
+    expect(failureWarnings([share('v', 1, 3)], labels)[0]).toMatch(/^variant "v" \(scenario year levels = 3\):/);
+  });
 });

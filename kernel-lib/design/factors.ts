@@ -2,10 +2,10 @@
 import { listNames } from '../model/errors';
 import { checkFactorLevels } from './size-limits';
 import { expectArray, expectInteger, expectObject, fail, rejectUnknownKeys } from '../model/option-checks';
-import { expectName } from './checks';
+import { expectLabel, expectName } from './checks';
 import type { ResolvedFactor } from './types';
 
-const FACTOR_KEYS = ['name', 'levels', 'within'];
+const FACTOR_KEYS = ['name', 'levels', 'within', 'labels'];
 
 /**
  * Level labels: the factor name and a 1-based number zero-padded to the width of the largest,
@@ -20,6 +20,50 @@ export function levelLabels(name: string, count: number): string[] {
   return labels;
 }
 
+/**
+ * The labels of a factor's `levels` levels from its `labels` field (e.g. the pilot's years): the
+ * first `levels` of them; when a grid asks for more levels than listed, a whole-number series with
+ * a constant step (2021, 2022, 2023) is continued (2024, …), other labels are followed by the
+ * factor's name and the level's number (ashpool, …, fernholt, site7, site8).
+ */
+export function labelsForLevels(name: string, given: readonly string[], levels: number): string[] {
+  if (levels <= given.length) return given.slice(0, levels);
+  const numbers = given.map((l) => (/^-?\d+$/.test(l) ? Number(l) : NaN));
+  const step = given.length >= 2 ? numbers[1] - numbers[0] : 1;
+  const series = step !== 0 && numbers.every((v, i) => Number.isSafeInteger(v) && (i === 0 || v - numbers[i - 1] === step));
+  const out = [...given];
+  const taken = new Set(given);
+  if (series) {
+    const width = given[0].replace('-', '').length;
+    for (let v = numbers[numbers.length - 1] + step; out.length < levels; v += step) {
+      out.push(v < 0 ? `-${String(-v).padStart(width, '0')}` : String(v).padStart(width, '0'));
+    }
+    return out;
+  }
+  for (let k = given.length + 1; out.length < levels; k++) {
+    const label = `${name}${k}`;
+    if (!taken.has(label)) out.push(label);
+  }
+  return out;
+}
+
+/** A `labels` field: distinct labels without the characters that structure coefficient names. */
+function parseLabels(value: unknown, path: string): string[] {
+  const list = expectArray(value, path);
+  if (list.length === 0) fail(`${path}: expected at least one label`, path);
+  const seen = new Set<string>();
+  return list.map((item, i) => {
+    const p = `${path}[${i}]`;
+    // numbers are accepted as their text (years written as 2021)
+    const text = typeof item === 'number' && Number.isFinite(item) ? String(item) : item;
+    if (typeof text !== 'string') return fail(`${p}: expected a label (text or a number), got ${JSON.stringify(item) ?? typeof item}`, p);
+    expectLabel(text, p);
+    if (seen.has(text)) fail(`${p}: label "${text}" is listed twice`, p);
+    seen.add(text);
+    return text;
+  });
+}
+
 export function parseFactors(value: unknown, path: string): ResolvedFactor[] {
   const list = expectArray(value, path);
   if (list.length === 0) fail(`${path}: expected at least one factor`, path);
@@ -31,6 +75,7 @@ export function parseFactors(value: unknown, path: string): ResolvedFactor[] {
       name: expectName(obj.name, `${p}.name`),
       levels: expectInteger(obj.levels, `${p}.levels`, 1),
       within: obj.within === undefined ? undefined : expectName(obj.within, `${p}.within`),
+      labels: obj.labels === undefined ? undefined : parseLabels(obj.labels, `${p}.labels`),
     };
   });
 
@@ -55,6 +100,12 @@ export function parseFactors(value: unknown, path: string): ResolvedFactor[] {
     }
   });
 
+  specs.forEach((f, i) => {
+    if (f.labels !== undefined && f.within !== undefined) {
+      fail(`${path}[${i}].labels: a nested factor's levels are numbered through the survey; labels are for crossed factors only`, `${path}[${i}].labels`);
+    }
+  });
+
   const total = new Map<string, number>();
   const totalOf = (name: string): number => {
     const known = total.get(name);
@@ -67,7 +118,8 @@ export function parseFactors(value: unknown, path: string): ResolvedFactor[] {
   specs.forEach((f, i) => checkFactorLevels(f.name, totalOf(f.name), `${path}[${i}].levels`));
   return specs.map((f) => {
     const totalLevels = totalOf(f.name);
-    const resolved: ResolvedFactor = { name: f.name, levels: f.levels, totalLevels, labels: levelLabels(f.name, totalLevels) };
+    const labels = f.labels === undefined ? levelLabels(f.name, totalLevels) : labelsForLevels(f.name, f.labels, f.levels);
+    const resolved: ResolvedFactor = { name: f.name, levels: f.levels, totalLevels, labels };
     if (f.within !== undefined) {
       resolved.within = f.within;
       // Level g of a nested factor lies in outer level floor(g / levels).

@@ -1,11 +1,13 @@
 import { describeSurvey, type SurveySummary } from '../data/describe-survey';
 import { toColumns, type Columns } from '../data/columns';
 import { isMissing } from '../data/missing';
+import { naturalOrder } from '../numeric/natural-order';
 import { fitResolvedModel, type SurveyData } from '../analyse/fit-model';
 import type { FitResult } from '../fit/result';
 import { parseModel } from '../model/parse';
 import { involvesLevelOf, termColumns } from '../model/terms';
 import type { ModelSpec, ResolvedModel } from '../model/types';
+import { expectLabel } from './checks';
 import type { CovariateSpec, FactorSpec, SurveyDesignSpec, VariantSpec } from './types';
 
 export interface DesignFromSurveyOptions {
@@ -30,6 +32,34 @@ function mean(values: number[]): number {
 function sd(values: number[]): number {
   const m = mean(values);
   return Math.sqrt(values.reduce((a, b) => a + (b - m) ** 2, 0) / Math.max(1, values.length - 1));
+}
+
+/**
+ * A crossed factor's level names as the design's `labels`: the pilot's labels in natural order
+ * (numbers and years by value, otherwise first appearance), or, when a label cannot name a
+ * design level (it holds a character that structures coefficient names), none: see usableLabel.
+ */
+function pilotLabels(column: ArrayLike<unknown>): string[] {
+  const seen: string[] = [];
+  const known = new Set<string>();
+  for (let i = 0; i < column.length; i++) {
+    if (isMissing(column[i])) continue;
+    const label = String(column[i]);
+    if (!known.has(label)) {
+      known.add(label);
+      seen.push(label);
+    }
+  }
+  return naturalOrder(seen);
+}
+
+function usableLabel(label: string): boolean {
+  try {
+    expectLabel(label, 'label');
+    return true;
+  } catch {
+    return false;
+  }
 }
 
 /** The grouping factor whose levels a column is constant within (the one with fewest levels), if any. */
@@ -71,7 +101,13 @@ export function designFromSurvey(data: SurveyData, model: ModelSpec | ResolvedMo
   const notes: string[] = [];
 
   const factors: FactorSpec[] = resolved.groups.map((g) => {
-    if (!g.within) return { name: g.factor, levels: summary.factors.find((f) => f.factor === g.factor)!.levels };
+    if (!g.within) {
+      // the pilot's own level names in their natural order (2021, 2022, … rather than year1, year2, …)
+      const labels = pilotLabels(columns[g.factor]);
+      if (labels.every(usableLabel)) return { name: g.factor, levels: labels.length, labels };
+      notes.push(`the levels of ${g.factor} are numbered (${g.factor}1, …): some of its pilot labels hold a character that structures coefficient names ([ ] : | . / = \\)`);
+      return { name: g.factor, levels: labels.length };
+    }
     // a nested factor's design levels are per outer level: the mean count of own labels under each outer label
     const inner = columns[g.factor];
     const outer = columns[g.within];

@@ -15,6 +15,14 @@ export interface FactorSpec {
   levels: number;
   /** Outer factor this one is nested in. Without it, factors are crossed. */
   within?: string;
+  /**
+   * Names of the levels in their natural order (e.g. the pilot's years 2021, 2022, 2023), used in
+   * the simulated data, coefficient names and charts; crossed factors only. Default: the factor's
+   * name and a number ("year1"). With fewer levels the first labels are used; with more, a
+   * whole-number series is continued (2024, …) and other labels are followed by the factor's
+   * name and number ("site7").
+   */
+  labels?: (string | number)[];
 }
 
 export interface NormalSpec {

@@ -1,4 +1,5 @@
 /** The raw data of one survey: the response by group, with each group's mean marked. */
+import { naturalOrder } from '../numeric/natural-order';
 import { MARK_COLOUR, REFERENCE_COLOUR } from './theme';
 import type { FieldTitles, InlineRow, LayerPart, VegaLiteSpec } from './types';
 import { layeredSpec } from './layout';
@@ -31,7 +32,7 @@ export interface GroupDataOptions {
   group: string;
   /**
    * Numeric covariate field. When given, each group gets its own panel with response against x;
-   * when absent, groups lie side by side on the x axis, ordered by their mean. Default: absent.
+   * when absent, groups lie side by side on the x axis, in their natural order (numbers and years by value, otherwise as they first appear). Default: absent.
    */
   x?: string;
   /** Panels per row when `x` is given; panels follow the groups' first appearance in the rows. Default 4. */
@@ -108,12 +109,12 @@ export function groupData(rows: readonly object[], options: GroupDataOptions): V
   const title = titleOption ?? capitalise(`${responseTitle} by ${groupTitle}`);
 
   if (x === undefined) {
-    subtitle.unshift('Points: observations; black tick: group mean. Groups ordered by their mean.');
+    subtitle.unshift('Points: observations; black tick: group mean. Groups in their natural order (numbers and years by value).');
     const xEncoding = {
       field: fieldRef(group),
       type: 'nominal' as const,
       title: groupTitle,
-      sort: groupsByMean(groups),
+      sort: naturalOrder([...groups.keys()]),
       scale: { type: 'band' as const, paddingInner: 0.2 },
       axis: { labelAngle: groups.size > 12 ? -90 : 0 },
     };
@@ -177,13 +178,8 @@ export function groupData(rows: readonly object[], options: GroupDataOptions): V
     width: positiveOption(options.width, 'width', BUILDER, 160),
     height: positiveOption(options.height, 'height', BUILDER, 120),
     layers,
-    wrap: { field: group, title: groupTitle, order: [...groups.keys()], columns },
+    wrap: { field: group, title: groupTitle, order: naturalOrder([...groups.keys()]), columns },
   });
-}
-
-/** Group names by ascending mean response; ties keep first appearance (Array.prototype.sort is stable). */
-function groupsByMean(groups: Map<string, { sum: number; count: number }>): string[] {
-  return [...groups.entries()].sort((a, b) => a[1].sum / a[1].count - b[1].sum / b[1].count).map(([g]) => g);
 }
 
 function readOptionalNumber(row: Record<string, unknown>, field: string, index: number): number {

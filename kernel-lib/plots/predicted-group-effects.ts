@@ -3,6 +3,7 @@
  * (open circle) beside its predicted effect with its interval (filled dot and bar), joined by a
  * thin line, so a reader sees how far levels with few observations are pulled towards 0.
  */
+import { naturalOrder } from '../numeric/natural-order';
 import { MARK_COLOUR, REFERENCE_COLOUR } from './theme';
 import type { InlineRow, LayerPart, VegaLiteSpec } from './types';
 import { ONE_PER_CELL, layeredSpec } from './layout';
@@ -35,11 +36,6 @@ export interface PredictedGroupEffectsOptions {
   width?: number;
   /** Height per level in pixels. Default 18 with up to 40 levels, else 6. */
   step?: number;
-}
-
-/** Natural order of level labels: numbers as numbers ("2" before "10"), then text. */
-function naturalOrder(levels: string[]): string[] {
-  return [...levels].sort((a, b) => a.localeCompare(b, undefined, { numeric: true }));
 }
 
 /**

@@ -45,7 +45,9 @@ describe('designFromSurvey', () => {
   it('derives a design that looks like the pilot and parses', () => {
     const { design, fit, notes } = designFromSurvey(demo, model, { seed: 5, replicates: 200 });
     expect(design.factors).toEqual([
-      { name: 'site', levels: 6 }, { name: 'plot', levels: 3, within: 'site' }, { name: 'year', levels: 4 },
+      { name: 'site', levels: 6, labels: ['ashpool', 'brackenway', 'curlewflat', 'dunlinbank', 'eelmere', 'fernholt'] },
+      { name: 'plot', levels: 3, within: 'site' },
+      { name: 'year', levels: 4, labels: ['2021', '2022', '2023', '2024'] },
     ]);
     expect(design.perCell).toBe(2);
     // 140 of 6 × 3 × 4 × 2 = 144 rows used

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { isNestedWithin, levelLabels, levelMap, parseFactors } from '../../kernel-lib/design/factors';
+import { isNestedWithin, labelsForLevels, levelLabels, levelMap, parseFactors } from '../../kernel-lib/design/factors';
 import { inputError } from '../helpers/input-error';
 
 // Nesting arithmetic of a survey: a factor nested in another has levels × (outer total) levels in
@@ -61,5 +61,25 @@ describe('parseFactors', () => {
     // 1000 sites × 2000 plots each = 2,000,000 plots, beyond the 1,000,000-level limit
     const e = inputError(() => parseFactors([{ name: 'site', levels: 1000 }, { name: 'plot', levels: 2000, within: 'site' }], 'design.factors'));
     expect(e.field).toBe('design.factors[1].levels');
+  });
+
+  it('takes level labels for a crossed factor, validated like category labels (field named)', () => {
+    const [year] = parseFactors([{ name: 'year', levels: 3, labels: [2021, '2022', 2023] }], 'design.factors');
+    expect(year.labels).toEqual(['2021', '2022', '2023']);
+    expect(inputError(() => parseFactors([{ name: 'year', levels: 2, labels: ['a', 'a'] }], 'design.factors')).field).toBe('design.factors[0].labels[1]');
+    expect(inputError(() => parseFactors([{ name: 'year', levels: 2, labels: ['a', 'b=c'] }], 'design.factors')).field).toBe('design.factors[0].labels[1]');
+    expect(inputError(() => parseFactors([{ name: 'year', levels: 2, labels: [] }], 'design.factors')).field).toBe('design.factors[0].labels');
+    expect(inputError(() => parseFactors([{ name: 'year', levels: 2, labels: [true] }], 'design.factors')).field).toBe('design.factors[0].labels[0]');
+    const nested = inputError(() => parseFactors([{ name: 'site', levels: 2 }, { name: 'plot', levels: 2, within: 'site', labels: ['1', '2'] }], 'design.factors'));
+    expect(nested.field).toBe('design.factors[1].labels');
+  });
+
+  it('fits the labels to the number of levels a grid asks for', () => {
+    // the first labels when fewer levels; a whole-number series continued with its step and width
+    expect(labelsForLevels('year', ['2021', '2022', '2023'], 2)).toEqual(['2021', '2022']);
+    expect(labelsForLevels('year', ['2021', '2023'], 4)).toEqual(['2021', '2023', '2025', '2027']);
+    expect(labelsForLevels('plot', ['08', '09'], 3)).toEqual(['08', '09', '10']);
+    // other labels: the factor's name and number, skipping a name already taken
+    expect(labelsForLevels('site', ['ashpool', 'site3'], 4)).toEqual(['ashpool', 'site3', 'site4', 'site5']);
   });
 });

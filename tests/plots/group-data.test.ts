@@ -31,9 +31,10 @@ describe('groupData(rows, { response, group })', () => {
     );
   });
 
-  it('orders the groups by mean and marks each mean', async () => {
+  it('keeps the groups in their natural order (not by mean) and marks each mean', async () => {
     const { view } = await expectValidAndRendered(spec, []);
-    expect((view.scale('x') as unknown as { domain(): string[] }).domain()).toEqual(['C', 'A', 'B']);
+    // C has the lowest mean; the order stays that of the data
+    expect((view.scale('x') as unknown as { domain(): string[] }).domain()).toEqual(['A', 'B', 'C']);
     const ticks = markItems(view, 'group_means');
     expect(ticks).toHaveLength(3);
     for (const t of ticks) {
@@ -90,5 +91,17 @@ describe('groupData errors', () => {
     expect(() => groupData(ROWS, { group: 'site' } as never)).toThrow(
       /^groupData: options\.response: expected a non-empty field name \(required\)$/,
     );
+  });
+});
+
+describe('groupData level order', () => {
+  it('orders years in time order whatever their means or row order', () => {
+    // invented heights: 2024 lowest, rows not in time order
+    const rows = [
+      { year: '2023', height: 5 }, { year: '2021', height: 9 }, { year: '2024', height: 1 }, { year: '2022', height: 7 }, { year: '2010', height: 4 },
+    ];
+    const spec = groupData(rows, { response: 'height', group: 'year' }) as { layer: { encoding: { x?: { sort?: unknown } } }[] };
+    const sorts = spec.layer.map((l) => l.encoding.x?.sort).filter((v) => v !== undefined);
+    expect(sorts[0]).toEqual(['2010', '2021', '2022', '2023', '2024']);
   });
 });

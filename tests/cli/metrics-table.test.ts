@@ -16,7 +16,7 @@ describe('formatMetricsTable', () => {
       m('fixed', 'slope', 'coverage', 0.912, 0.02),
     ]);
     const lines = text.split('\n');
-    expect(lines[0].trim().split(/\s{2,}/)).toEqual(['scenario', 'variant', 'parameter', 'coverage', 'bias']);
+    expect(lines[0].trim().split(/\s{2,}/)).toEqual(['scenario', 'variant', 'parameter', 'truth', 'coverage', 'bias']);
     expect(lines[2]).toMatch(/^\s+base\s+random\s+slope\s+0\.943 \(0\.007\)\s+0\.012 \(0\.004\)$/);
     expect(lines[3]).toMatch(/^\s+base\s+fixed\s+slope\s+0\.91 \(0\.02\)$/);
   });
@@ -35,5 +35,10 @@ describe('formatMetricsTable', () => {
     const text = formatMetricsTable([m('v', 'x', 'rmse', 0.31, 0.02), m('v', 'x', 'bias', 0.1, 0.02)], ['rmse']);
     expect(text).not.toContain('bias');
     expect(text).toContain('0.31 (0.02)');
+  });
+
+  it('shows the true value beside each parameter: mean estimate − bias', () => {
+    const text = formatMetricsTable([m('v', 'x', 'mean', 2.5123, 0.004), m('v', 'x', 'bias', 0.0123, 0.004)], ['bias']);
+    expect(text.split('\n')[2]).toMatch(/\sx\s+2\.5\s+0\.012 \(0\.004\)$/);
   });
 });

@@ -87,3 +87,10 @@ export type { VariantCell } from './study/reading';
 export type { ReplicateKind, ReplicateStatus } from './study/replicate-row';
 export type { StudyManifest } from './study/study-folder';
 export type { WideRow } from './study/wide-table';
+// Types that exported types refer to, so the API reference documents them too.
+export type { PercentileInterval } from './fit/inference/bootstrap';
+export type { BetweenSpec, NormalSpec, UniformSpec, RandomTruth, TruthTerm, TruthPart, TrialsRangeSpec } from './design/types';
+export type { ColumnRole } from './data/design-matrices';
+export type { FamilyName } from './family/types';
+export type { GoalLook, Verdict } from './study/plan-search';
+export type { RealisedEffects } from './design/simulate';

@@ -8,6 +8,7 @@ import type { ConditionalModeRow, ResponseSummary } from '../result';
 import { estimateCountModel } from './count-model';
 import { termCovariances } from './normal';
 import { aliasReasons } from '../alias-reasons';
+import { unboundedCoefficients } from './no-finite-maximum';
 import type { CountFamily } from './glm-response';
 import { countContext, countIntervals } from '../inference/count-intervals';
 import type { Estimate, EstimateStep, TermCovariance } from './types';
@@ -33,6 +34,14 @@ export function countEstimateStep(family: CountFamily): EstimateStep {
       warnings.push(
         `overdispersion: Pearson χ²/df = ${ratio.toFixed(2)} (above ${OVERDISPERSION_WARNING}); the ${family} variance is too small for these data, so SEs are too small. ` +
           `Consider "family": "negative-binomial"${family === 'binomial' ? ' (counts) or' : ' or'} an observation-level random effect (a grouping factor with one level per row, as "random").`,
+      );
+    }
+    const unbounded = unboundedCoefficients(est.cov, est.estimable.length).map((a) => design.fixedNames[est.estimable[a]]);
+    if (unbounded.length > 0) {
+      warnings.push(
+        `no finite estimate for ${unbounded.join(', ')}: the likelihood keeps rising as ${unbounded.length === 1 ? 'it runs' : 'they run'} towards ±∞ ` +
+          `(separation: a level or covariate range with only ${family === 'binomial' ? 'detections or only non-detections' : 'zero counts'}), so ${unbounded.length === 1 ? 'its' : 'their'} estimate, SE and interval are meaningless. ` +
+          'Merge sparse levels, drop the term, or treat the factor as random.',
       );
     }
     const response: ResponseSummary = {

@@ -8,7 +8,7 @@
  * Resample b draws from its own stream createStream(seed, 'bootstrap', b): the spherical random
  * effects u (engine term order, level by level), then the n responses in row order. A resample
  * is therefore the same whichever worker runs it. A refit that yields no likelihood, does not
- * converge or has no finite maximum (separation: a link-scale SE above NO_MAXIMUM_SE) is a failure:
+ * converge or has no finite maximum (separation: see ../estimate/no-finite-maximum) is a failure:
  * its row is NaN, and failures are counted and reported by summariseBootstrap.
  */
 import type { DesignMatrices } from '../../data/design-matrices';
@@ -17,12 +17,7 @@ import { createStream } from '../../random/stream';
 import { ProfiledDeviance } from '../profiled-deviance';
 import { addDrawnEffects } from './random-draw';
 import { estimateCountModel, type CountFitOptions } from '../estimate/count-model';
-
-/**
- * A link-scale SE above this means the likelihood has no finite maximum in that direction (e.g. a
- * detection resample separated by a covariate): a factor of e^196 per SE (common practice, no source).
- */
-const NO_MAXIMUM_SE = 100;
+import { unboundedCoefficients } from '../estimate/no-finite-maximum';
 
 /** What a count resample needs beyond the design and estimates (plain data, structured-cloneable). */
 export interface CountResampling {
@@ -114,6 +109,5 @@ export class CountBootstrapRunner {
 }
 
 function finiteMaximum(cov: Float64Array, p: number): boolean {
-  for (let a = 0; a < p; a++) if (!(Math.sqrt(cov[a * p + a]) <= NO_MAXIMUM_SE)) return false;
-  return true;
+  return unboundedCoefficients(cov, p).length === 0;
 }

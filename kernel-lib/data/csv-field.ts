@@ -6,3 +6,14 @@
 export function csvField(text: string): string {
   return /[",\n\r]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
 }
+
+/**
+ * A number as every Quadrat CSV writes it: JavaScript's shortest round-trip form (reading gives the
+ * exact double back), NaN as an empty cell, infinities as "Inf" / "-Inf".
+ */
+export function csvNumber(v: number): string {
+  if (Number.isNaN(v)) return '';
+  if (v === Infinity) return 'Inf';
+  if (v === -Infinity) return '-Inf';
+  return String(v);
+}

@@ -6,7 +6,7 @@
  * batch (plus, for a study small enough, the rows handed back to the caller).
  */
 import { closeSync, fsyncSync, openSync, readFileSync, renameSync, rmSync, writeSync } from 'node:fs';
-import { csvField } from '../data/csv-field';
+import { csvField, csvNumber } from '../data/csv-field';
 import { parseDesign } from '../design/parse';
 import type { Batch } from './batch-plan';
 import { readCheckedBatch, writeAtomic } from './batch-files';
@@ -162,7 +162,7 @@ function metricsToCsv(metrics: MetricRow[]): string {
   const cols = ['scenario', 'variant', 'parameter', 'kind', 'metric', 'value', 'mcse', 'n', 'note'] as const;
   const lines = [cols.join(',')];
   for (const m of metrics) {
-    lines.push(cols.map((c) => (c === 'note' ? csvField(m.note ?? '') : typeof m[c] === 'string' ? csvField(m[c] as string) : Number.isNaN(m[c] as number) ? '' : String(m[c]))).join(','));
+    lines.push(cols.map((c) => (c === 'note' ? csvField(m.note ?? '') : typeof m[c] === 'string' ? csvField(m[c] as string) : csvNumber(m[c] as number))).join(','));
   }
   return `${lines.join('\n')}\n`;
 }

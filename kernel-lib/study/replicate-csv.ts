@@ -1,4 +1,4 @@
-import { csvField } from '../data/csv-field';
+import { csvField, csvNumber } from '../data/csv-field';
 import type { ReplicateKind, ReplicateRow, ReplicateStatus } from './replicate-row';
 
 /**
@@ -12,12 +12,6 @@ const REPLICATE_COLUMNS = [
 
 export const REPLICATE_HEADER = REPLICATE_COLUMNS.join(',');
 
-function num(v: number): string {
-  if (Number.isNaN(v)) return '';
-  if (v === Infinity) return 'Inf';
-  if (v === -Infinity) return '-Inf';
-  return String(v);
-}
 
 export function replicateRowsToCsv(rows: readonly ReplicateRow[], header = false): string {
   let out = header ? `${REPLICATE_HEADER}\n` : '';
@@ -31,12 +25,12 @@ export function replicateRowsToCsv(rows: readonly ReplicateRow[], header = false
   };
   const repeated = (v: number) => {
     let t = numCache.get(v);
-    if (t === undefined) { t = num(v); numCache.set(v, t); }
+    if (t === undefined) { t = csvNumber(v); numCache.set(v, t); }
     return t;
   };
   for (const r of rows) {
     out += `${text(r.scenario)},${text(r.variant)},${r.replicate},${text(r.parameter)},${r.kind},${repeated(r.truth)},` +
-      `${num(r.estimate)},${num(r.se)},${num(r.lower)},${num(r.upper)},${repeated(r.df)},${r.status},${text(r.reason)}\n`;
+      `${csvNumber(r.estimate)},${csvNumber(r.se)},${csvNumber(r.lower)},${csvNumber(r.upper)},${repeated(r.df)},${r.status},${text(r.reason)}\n`;
   }
   return out;
 }

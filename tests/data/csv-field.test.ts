@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { csvField } from '../../kernel-lib/data/csv-field';
+import { csvField, csvNumber } from '../../kernel-lib/data/csv-field';
 import { parseCsv } from '../../kernel-lib/data/csv';
 
 describe('csvField', () => {
@@ -18,5 +18,15 @@ describe('csvField', () => {
     const cols = parseCsv(csv);
     expect(cols.name).toEqual(texts);
     expect(cols.other).toEqual(texts.map((_, i) => `r${i}`));
+  });
+});
+
+describe('csvNumber', () => {
+  it('writes the shortest text that reads back as the same double (ECMA-262 Number::toString), NaN empty, infinities Inf/-Inf', () => {
+    for (const v of [0.1 + 0.2, 1 / 3, -2.5e-300, 123456789.125, 5e-324]) expect(Number(csvNumber(v))).toBe(v);
+    expect(csvNumber(0.1 + 0.2)).toBe('0.30000000000000004');
+    expect(csvNumber(NaN)).toBe('');
+    expect(csvNumber(Infinity)).toBe('Inf');
+    expect(csvNumber(-Infinity)).toBe('-Inf');
   });
 });
